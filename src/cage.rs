@@ -1,0 +1,448 @@
+//! The cage model: a cubic plane graph together with its faces.
+//!
+//! A carbon cage is a 3-connected cubic plane graph; by Whitney's theorem its embedding is unique
+//! up to reflection, so the rotation system (the cyclic order of neighbours at every vertex) fixes
+//! the faces. [`Cage`] stores that rotation system, the faces traced from it, the edge list and the
+//! dual (faces with their neighbouring faces in cyclic order).
+//!
+//! Nothing here assumes pentagons and hexagons: any face size from 3 to 8 is accepted, and which
+//! sizes a cage family may use is the business of [`FaceSet`]. This module does no I/O.
+
+use std::fmt;
+
+/// Largest face size a cage may have (octagons); spiral arrays are sized from it.
+pub const MAX_FACE: usize = 8;
+
+/// Index of an atom (a vertex of the cage graph).
+#[derive(Debug, Clone, Copy, PartialEq, Eq, PartialOrd, Ord, Hash)]
+pub struct VertexId(pub u32);
+
+/// Index of a face (a ring) of the cage.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, PartialOrd, Ord, Hash)]
+pub struct FaceId(pub u32);
+
+/// Index of a bond (an edge) in [`Cage::edges`].
+#[derive(Debug, Clone, Copy, PartialEq, Eq, PartialOrd, Ord, Hash)]
+pub struct EdgeId(pub u32);
+
+impl VertexId {
+    pub fn index(self) -> usize {
+        self.0 as usize
+    }
+}
+impl FaceId {
+    pub fn index(self) -> usize {
+        self.0 as usize
+    }
+}
+impl EdgeId {
+    pub fn index(self) -> usize {
+        self.0 as usize
+    }
+}
+
+/// Which ring sizes a family of cages may use.
+///
+/// Euler's formula for a cubic polyhedron, sum over faces of (6 - size) = 12, ties the counts
+/// together; the enumerator uses it as its budget.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, serde::Serialize, serde::Deserialize)]
+pub enum FaceSet {
+    /// Pentagons and hexagons: the classical fullerenes.
+    Fullerene,
+    /// Squares and hexagons (models of boron-nitride cages).
+    SquareHexagon,
+    /// Squares, pentagons and hexagons.
+    SquarePentagonHexagon,
+}
+
+impl FaceSet {
+    /// The allowed face sizes in increasing order.
+    pub fn sizes(self) -> &'static [u8] {
+        match self {
+            FaceSet::Fullerene => &[5, 6],
+            FaceSet::SquareHexagon => &[4, 6],
+            FaceSet::SquarePentagonHexagon => &[4, 5, 6],
+        }
+    }
+
+    pub fn allows(self, size: u8) -> bool {
+        self.sizes().contains(&size)
+    }
+
+    /// Short stable name used in file names and JSON.
+    pub fn name(self) -> &'static str {
+        match self {
+            FaceSet::Fullerene => "fullerene",
+            FaceSet::SquareHexagon => "4-6",
+            FaceSet::SquarePentagonHexagon => "4-5-6",
+        }
+    }
+}
+
+impl fmt::Display for FaceSet {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        f.write_str(self.name())
+    }
+}
+
+/// Why a rotation system is not a cage.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub enum CageError {
+    /// A vertex lists itself or a neighbour twice.
+    BadNeighbours { vertex: u32 },
+    /// `u` lists `v` as a neighbour but `v` does not list `u`.
+    Asymmetric { u: u32, v: u32 },
+    /// A neighbour index is out of range.
+    OutOfRange { vertex: u32, neighbour: u32 },
+    /// The traced faces do not satisfy Euler's formula V - E + F = 2, so the rotation system
+    /// does not describe a sphere.
+    NotSpherical { vertices: usize, edges: usize, faces: usize },
+    /// A face is smaller than 3 or larger than [`MAX_FACE`].
+    FaceSize { face: usize, size: usize },
+    /// Two faces share more than one edge, or a face meets itself: not 3-connected.
+    NotPolyhedral { face: usize },
+    /// Too few atoms for a closed cage.
+    TooSmall { vertices: usize },
+}
+
+impl fmt::Display for CageError {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        match self {
+            CageError::BadNeighbours { vertex } => {
+                write!(f, "atom {vertex} is bonded to itself or twice to the same atom")
+            }
+            CageError::Asymmetric { u, v } => {
+                write!(f, "atom {u} lists atom {v} as a neighbour but not the reverse")
+            }
+            CageError::OutOfRange { vertex, neighbour } => {
+                write!(f, "atom {vertex} names neighbour {neighbour}, which does not exist")
+            }
+            CageError::NotSpherical { vertices, edges, faces } => write!(
+                f,
+                "the bonds do not form a closed cage: V - E + F = {vertices} - {edges} + {faces} \
+                 is not 2 (Euler's formula)"
+            ),
+            CageError::FaceSize { face, size } => write!(
+                f,
+                "ring {face} has {size} atoms; cages here may have rings of 3 to {MAX_FACE} atoms"
+            ),
+            CageError::NotPolyhedral { face } => write!(
+                f,
+                "ring {face} shares more than one bond with another ring or touches itself: \
+                 the graph is not a polyhedron"
+            ),
+            CageError::TooSmall { vertices } => {
+                write!(f, "{vertices} atoms are too few for a closed cage (need at least 4)")
+            }
+        }
+    }
+}
+
+impl std::error::Error for CageError {}
+
+/// A closed cubic cage: atoms, bonds and rings, with the rotation system that embeds it.
+///
+/// Invariants (checked by [`Cage::from_rotation`]): every vertex has three distinct neighbours,
+/// adjacency is symmetric, faces satisfy Euler's formula, every face has 3..=8 vertices, and every
+/// edge lies on exactly two distinct faces.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct Cage {
+    /// Neighbours of each vertex in rotation order (one consistent orientation).
+    rotation: Vec<[u32; 3]>,
+    /// Faces as vertex cycles, all traversed in the same orientation.
+    faces: Vec<Vec<u32>>,
+    /// Edges as sorted vertex pairs, in lexicographic order.
+    edges: Vec<[u32; 2]>,
+    /// The two faces on either side of each edge (aligned with `edges`).
+    edge_faces: Vec<[u32; 2]>,
+    /// For each face, the neighbouring faces in cyclic order (the dual's rotation system);
+    /// `dual[f][i]` lies across the edge `faces[f][i]`–`faces[f][i+1]`.
+    dual: Vec<Vec<u32>>,
+}
+
+impl Cage {
+    /// Builds a cage from a rotation system, tracing its faces.
+    ///
+    /// The face to the left of the dart u→v continues with v→w, where w follows u in v's
+    /// rotation; every dart lies on exactly one face.
+    pub fn from_rotation(rotation: Vec<[u32; 3]>) -> Result<Cage, CageError> {
+        let n = rotation.len();
+        if n < 4 {
+            return Err(CageError::TooSmall { vertices: n });
+        }
+        check_adjacency(&rotation)?;
+        let faces = trace_faces(&rotation)?;
+        let edges_count = 3 * n / 2;
+        if n + faces.len() != edges_count + 2 {
+            return Err(CageError::NotSpherical {
+                vertices: n,
+                edges: edges_count,
+                faces: faces.len(),
+            });
+        }
+        let (edges, edge_faces) = edge_tables(&rotation, &faces)?;
+        let dual = dual_rotation(&faces, &edges, &edge_faces);
+        for (i, nbrs) in dual.iter().enumerate() {
+            let mut sorted = nbrs.clone();
+            sorted.sort_unstable();
+            sorted.dedup();
+            if sorted.len() != nbrs.len() || sorted.contains(&(i as u32)) {
+                return Err(CageError::NotPolyhedral { face: i });
+            }
+        }
+        Ok(Cage {
+            rotation,
+            faces,
+            edges,
+            edge_faces,
+            dual,
+        })
+    }
+
+    /// Number of atoms.
+    pub fn atoms(&self) -> usize {
+        self.rotation.len()
+    }
+
+    pub fn face_count(&self) -> usize {
+        self.faces.len()
+    }
+
+    /// The three neighbours of `v` in rotation order.
+    pub fn neighbours(&self, v: VertexId) -> [VertexId; 3] {
+        self.rotation[v.index()].map(VertexId)
+    }
+
+    /// The whole rotation system, as raw indices.
+    pub fn rotation(&self) -> &[[u32; 3]] {
+        &self.rotation
+    }
+
+    /// Faces as vertex cycles.
+    pub fn faces(&self) -> &[Vec<u32>] {
+        &self.faces
+    }
+
+    pub fn face(&self, f: FaceId) -> &[u32] {
+        &self.faces[f.index()]
+    }
+
+    pub fn face_size(&self, f: FaceId) -> usize {
+        self.faces[f.index()].len()
+    }
+
+    /// Edges as sorted vertex pairs in lexicographic order.
+    pub fn edges(&self) -> &[[u32; 2]] {
+        &self.edges
+    }
+
+    /// The two faces containing each edge (aligned with [`Cage::edges`]).
+    pub fn edge_faces(&self) -> &[[u32; 2]] {
+        &self.edge_faces
+    }
+
+    /// The index of edge {u, v}, if they are bonded.
+    pub fn edge_index(&self, u: VertexId, v: VertexId) -> Option<EdgeId> {
+        let key = if u <= v { [u.0, v.0] } else { [v.0, u.0] };
+        self.edges.binary_search(&key).ok().map(|i| EdgeId(i as u32))
+    }
+
+    /// Neighbouring faces of each face in cyclic order.
+    pub fn dual(&self) -> &[Vec<u32>] {
+        &self.dual
+    }
+
+    /// Number of faces of each size, indexed by size (0..=MAX_FACE).
+    pub fn face_size_counts(&self) -> [usize; MAX_FACE + 1] {
+        let mut counts = [0; MAX_FACE + 1];
+        for f in &self.faces {
+            counts[f.len()] += 1;
+        }
+        counts
+    }
+
+    /// True if every face size belongs to `set`.
+    pub fn fits(&self, set: FaceSet) -> bool {
+        self.faces.iter().all(|f| set.allows(f.len() as u8))
+    }
+
+    /// Number of edges shared by two pentagons (0 for an isolated-pentagon-rule cage).
+    pub fn pentagon_adjacencies(&self) -> usize {
+        self.edge_faces
+            .iter()
+            .filter(|[a, b]| self.faces[*a as usize].len() == 5 && self.faces[*b as usize].len() == 5)
+            .count()
+    }
+
+    /// Isolated pentagon rule: no two pentagons share an edge (Kroto 1987; Schmalz et al. 1988).
+    pub fn is_ipr(&self) -> bool {
+        self.pentagon_adjacencies() == 0
+    }
+
+    /// The same cage with vertices renamed by `perm` (new index of old vertex v is `perm[v]`).
+    /// Used by tests and by anything that must not depend on atom order.
+    pub fn relabelled(&self, perm: &[u32]) -> Cage {
+        let mut rotation = vec![[0u32; 3]; self.atoms()];
+        for (v, nb) in self.rotation.iter().enumerate() {
+            rotation[perm[v] as usize] = nb.map(|u| perm[u as usize]);
+        }
+        Cage::from_rotation(rotation).expect("relabelling preserves cage invariants")
+    }
+}
+
+fn check_adjacency(rotation: &[[u32; 3]]) -> Result<(), CageError> {
+    let n = rotation.len() as u32;
+    for (v, nb) in rotation.iter().enumerate() {
+        let v = v as u32;
+        for &u in nb {
+            if u >= n {
+                return Err(CageError::OutOfRange { vertex: v, neighbour: u });
+            }
+        }
+        if nb[0] == nb[1] || nb[1] == nb[2] || nb[0] == nb[2] || nb.contains(&v) {
+            return Err(CageError::BadNeighbours { vertex: v });
+        }
+        for &u in nb {
+            if !rotation[u as usize].contains(&v) {
+                return Err(CageError::Asymmetric { u: v, v: u });
+            }
+        }
+    }
+    Ok(())
+}
+
+fn position(nb: &[u32; 3], u: u32) -> usize {
+    nb.iter().position(|&x| x == u).expect("adjacency checked symmetric")
+}
+
+/// Traces every face by following darts; each dart (u→v) is used once.
+fn trace_faces(rotation: &[[u32; 3]]) -> Result<Vec<Vec<u32>>, CageError> {
+    let n = rotation.len();
+    let mut used = vec![[false; 3]; n];
+    let mut faces = Vec::new();
+    for start in 0..n {
+        for k in 0..3 {
+            if used[start][k] {
+                continue;
+            }
+            let mut face = Vec::new();
+            let (mut u, mut slot) = (start as u32, k);
+            while !used[u as usize][slot] {
+                used[u as usize][slot] = true;
+                face.push(u);
+                if face.len() > MAX_FACE {
+                    return Err(CageError::FaceSize {
+                        face: faces.len(),
+                        size: face.len(),
+                    });
+                }
+                let v = rotation[u as usize][slot];
+                let back = position(&rotation[v as usize], u);
+                slot = (back + 1) % 3;
+                u = v;
+            }
+            if face.len() < 3 {
+                return Err(CageError::FaceSize {
+                    face: faces.len(),
+                    size: face.len(),
+                });
+            }
+            faces.push(face);
+        }
+    }
+    Ok(faces)
+}
+
+type EdgeTables = (Vec<[u32; 2]>, Vec<[u32; 2]>);
+
+fn edge_tables(rotation: &[[u32; 3]], faces: &[Vec<u32>]) -> Result<EdgeTables, CageError> {
+    let mut edges: Vec<[u32; 2]> = rotation
+        .iter()
+        .enumerate()
+        .flat_map(|(v, nb)| nb.iter().map(move |&u| [v as u32, u]))
+        .filter(|[v, u]| v < u)
+        .collect();
+    edges.sort_unstable();
+    let mut edge_faces = vec![[u32::MAX; 2]; edges.len()];
+    for (fi, face) in faces.iter().enumerate() {
+        for i in 0..face.len() {
+            let (a, b) = (face[i], face[(i + 1) % face.len()]);
+            let key = if a < b { [a, b] } else { [b, a] };
+            let e = edges.binary_search(&key).expect("face darts are edges");
+            let slot = if edge_faces[e][0] == u32::MAX { 0 } else { 1 };
+            if edge_faces[e][slot] != u32::MAX || edge_faces[e][0] == fi as u32 {
+                return Err(CageError::NotPolyhedral { face: fi });
+            }
+            edge_faces[e][slot] = fi as u32;
+        }
+    }
+    Ok((edges, edge_faces))
+}
+
+fn dual_rotation(faces: &[Vec<u32>], edges: &[[u32; 2]], edge_faces: &[[u32; 2]]) -> Vec<Vec<u32>> {
+    faces
+        .iter()
+        .enumerate()
+        .map(|(fi, face)| {
+            (0..face.len())
+                .map(|i| {
+                    let (a, b) = (face[i], face[(i + 1) % face.len()]);
+                    let key = if a < b { [a, b] } else { [b, a] };
+                    let e = edges.binary_search(&key).expect("face darts are edges");
+                    let [x, y] = edge_faces[e];
+                    if x == fi as u32 {
+                        y
+                    } else {
+                        x
+                    }
+                })
+                .collect()
+        })
+        .collect()
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    /// The cube as a rotation system: 8 vertices, 6 square faces.
+    fn cube() -> Vec<[u32; 3]> {
+        // Vertices 0-3 bottom square, 4-7 top square; rotations chosen consistently.
+        vec![
+            [1, 3, 4],
+            [2, 0, 5],
+            [3, 1, 6],
+            [0, 2, 7],
+            [7, 5, 0],
+            [4, 6, 1],
+            [5, 7, 2],
+            [6, 4, 3],
+        ]
+    }
+
+    #[test]
+    fn cube_has_six_squares() {
+        let c = Cage::from_rotation(cube()).unwrap();
+        assert_eq!(c.face_count(), 6);
+        assert!(c.faces().iter().all(|f| f.len() == 4));
+        assert_eq!(c.edges().len(), 12);
+        assert!(c.fits(FaceSet::SquareHexagon));
+    }
+
+    #[test]
+    fn inconsistent_rotation_is_not_spherical() {
+        let mut r = cube();
+        r[0].swap(0, 1);
+        assert!(matches!(
+            Cage::from_rotation(r),
+            Err(CageError::NotSpherical { .. }) | Err(CageError::FaceSize { .. }) | Err(CageError::NotPolyhedral { .. })
+        ));
+    }
+
+    #[test]
+    fn asymmetric_adjacency_is_rejected() {
+        let mut r = cube();
+        r[0] = [1, 3, 5];
+        assert!(Cage::from_rotation(r).is_err());
+    }
+}

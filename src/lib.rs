@@ -1,0 +1,10 @@
+//! cagerank: enumerate, score, catalogue and export closed carbon cages (fullerenes and
+//! related cubic polyhedra).
+//!
+//! The pipeline is spiral → cage → scores → catalogue → query/export/draw. This crate holds all
+//! of the science; the `cagerank` binary only parses arguments and prints. Rankings computed here
+//! are screening heuristics, not predictions of real-world stability or safety.
+
+pub mod cage;
+pub mod enumerate;
+pub mod spiral;

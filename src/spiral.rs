@@ -1,0 +1,983 @@
+//! Face spirals: winding a face-size sequence into a cage, and reading spirals off a cage.
+//!
+//! Method: Manolopoulos, May & Down, Chem. Phys. Lett. 181 (1991) 105, and Fowler &
+//! Manolopoulos, *An Atlas of Fullerenes* (1995). A spiral orders all faces so that each new face
+//! touches the previous one and the earliest face of the growing patch that still has free edges.
+//! Winding works on the dual triangulation: faces are dual vertices, atoms are dual triangles.
+//!
+//! The canonical spiral is the lexicographically smallest size sequence over all starts that
+//! complete; the starts reproducing it are the cage's automorphisms. This module does no I/O and
+//! knows nothing about scoring or storage.
+
+use crate::cage::{Cage, FaceId, FaceSet, MAX_FACE};
+use std::cmp::Ordering;
+use std::fmt;
+
+/// Why a face-size sequence does not wind into a closed cage.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub enum WindError {
+    /// Fewer than 4 faces, or a face size outside 3..=8.
+    BadSize { position: usize, size: u8 },
+    /// Face `position` (0-based) cannot be attached: the open boundary has run out.
+    Jam { position: usize },
+    /// Face `position` would be closed by its neighbours before the last face.
+    ClosedEarly { position: usize },
+    /// Face `position` would need more neighbours than its size allows.
+    Overfull { position: usize },
+    /// The last face does not fit the hole left for it.
+    LastFace { expected: usize, hole: usize },
+    /// Two pentagons would share an edge, which the isolated-pentagon rule forbids.
+    AdjacentPentagons { position: usize },
+}
+
+impl fmt::Display for WindError {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        match self {
+            WindError::BadSize { position, size } => write!(
+                f,
+                "face {} has size {size}; face sizes must be 3 to {MAX_FACE}",
+                position + 1
+            ),
+            WindError::Jam { position } => write!(
+                f,
+                "the spiral jams at face {}: no open boundary is left to attach it to",
+                position + 1
+            ),
+            WindError::ClosedEarly { position } => write!(
+                f,
+                "the spiral closes too early: face {} is surrounded before the last face",
+                position + 1
+            ),
+            WindError::Overfull { position } => write!(
+                f,
+                "face {} would need more neighbours than it has edges",
+                position + 1
+            ),
+            WindError::LastFace { expected, hole } => write!(
+                f,
+                "the last face has size {expected} but the hole left for it has {hole} sides"
+            ),
+            WindError::AdjacentPentagons { position } => write!(
+                f,
+                "face {} puts two pentagons side by side (not an isolated-pentagon cage)",
+                position + 1
+            ),
+        }
+    }
+}
+
+impl std::error::Error for WindError {}
+
+/// Why a user-supplied spiral is not acceptable.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub enum SpiralError {
+    /// The atom count is not a possible cage size.
+    BadAtoms { atoms: u64, reason: String },
+    /// Wrong number of indices for the face set (a fullerene needs 12 pentagon positions).
+    WrongCount { expected: usize, got: usize },
+    /// An index is 0 or beyond the number of faces.
+    OutOfRange { index: u64, faces: usize },
+    /// Indices must strictly increase.
+    NotIncreasing { index: u64 },
+    /// The sequence does not wind into a closed cage.
+    DoesNotClose(WindError),
+}
+
+impl fmt::Display for SpiralError {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        match self {
+            SpiralError::BadAtoms { atoms, reason } => write!(f, "{atoms} atoms: {reason}"),
+            SpiralError::WrongCount { expected, got } => write!(
+                f,
+                "a fullerene spiral lists exactly {expected} pentagon positions, got {got}"
+            ),
+            SpiralError::OutOfRange { index, faces } => write!(
+                f,
+                "pentagon position {index} is out of range: positions run from 1 to {faces} \
+                 (the number of faces); pass --atoms if the cage is larger"
+            ),
+            SpiralError::NotIncreasing { index } => write!(
+                f,
+                "pentagon positions must strictly increase; {index} repeats or goes back"
+            ),
+            SpiralError::DoesNotClose(e) => write!(f, "not a valid spiral: {e}"),
+        }
+    }
+}
+
+impl std::error::Error for SpiralError {
+    fn source(&self) -> Option<&(dyn std::error::Error + 'static)> {
+        match self {
+            SpiralError::DoesNotClose(e) => Some(e),
+            _ => None,
+        }
+    }
+}
+
+/// A face spiral that is known to wind into a closed cage.
+///
+/// The only constructors wind the sequence, so a `Spiral` value is always valid (though not
+/// necessarily canonical: see [`canonical_spiral`]).
+#[derive(Debug, Clone, PartialEq, Eq, PartialOrd, Ord, Hash)]
+pub struct Spiral {
+    sizes: Vec<u8>,
+}
+
+impl Spiral {
+    /// Validates a face-size sequence by winding it.
+    pub fn from_sizes(sizes: Vec<u8>) -> Result<Spiral, WindError> {
+        wind_triangles(&sizes, false)?;
+        Ok(Spiral { sizes })
+    }
+
+    /// A fullerene spiral from its 12 pentagon positions (1-based), as written in the literature.
+    pub fn from_pentagon_indices(atoms: u64, indices: &[u64]) -> Result<Spiral, SpiralError> {
+        check_fullerene_atoms(atoms)?;
+        let faces = (atoms / 2 + 2) as usize;
+        if indices.len() != 12 {
+            return Err(SpiralError::WrongCount {
+                expected: 12,
+                got: indices.len(),
+            });
+        }
+        let mut sizes = vec![6u8; faces];
+        let mut prev = 0u64;
+        for &i in indices {
+            if i == 0 || i > faces as u64 {
+                return Err(SpiralError::OutOfRange { index: i, faces });
+            }
+            if i <= prev {
+                return Err(SpiralError::NotIncreasing { index: i });
+            }
+            prev = i;
+            sizes[(i - 1) as usize] = 5;
+        }
+        Spiral::from_sizes(sizes).map_err(SpiralError::DoesNotClose)
+    }
+
+    /// Trusted constructor for sequences that came out of a successful winding.
+    pub(crate) fn from_wound(sizes: Vec<u8>) -> Spiral {
+        Spiral { sizes }
+    }
+
+    /// Face sizes in spiral order.
+    pub fn sizes(&self) -> &[u8] {
+        &self.sizes
+    }
+
+    /// Number of atoms of the cage it winds into (faces - 2, times 2).
+    pub fn atoms(&self) -> usize {
+        2 * (self.sizes.len() - 2)
+    }
+
+    /// 1-based positions of the faces of `size` (for a fullerene and size 5, the usual notation).
+    pub fn positions_of(&self, size: u8) -> Vec<u32> {
+        self.sizes
+            .iter()
+            .enumerate()
+            .filter(|(_, &s)| s == size)
+            .map(|(i, _)| i as u32 + 1)
+            .collect()
+    }
+
+    /// The pentagon positions (the trade's notation for fullerene spirals).
+    pub fn pentagon_indices(&self) -> Vec<u32> {
+        self.positions_of(5)
+    }
+
+    /// The face set this spiral belongs to, if any of ours.
+    pub fn face_set(&self) -> Option<FaceSet> {
+        let has = |s: u8| self.sizes.contains(&s);
+        if self.sizes.iter().any(|&s| !(4..=6).contains(&s)) {
+            None
+        } else if has(4) && has(5) {
+            Some(FaceSet::SquarePentagonHexagon)
+        } else if has(4) {
+            Some(FaceSet::SquareHexagon)
+        } else {
+            Some(FaceSet::Fullerene)
+        }
+    }
+
+    /// Winds the spiral into its cage.
+    pub fn to_cage(&self) -> Cage {
+        let tris = wind_triangles(&self.sizes, false).expect("a Spiral always winds");
+        cage_from_triangles(&tris)
+    }
+}
+
+impl fmt::Display for Spiral {
+    /// Fullerenes print as pentagon positions; other cages as the full size sequence.
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        let list: Vec<String> = if self.face_set() == Some(FaceSet::Fullerene) {
+            self.pentagon_indices().iter().map(|i| i.to_string()).collect()
+        } else {
+            self.sizes.iter().map(|s| s.to_string()).collect()
+        };
+        f.write_str(&list.join(" "))
+    }
+}
+
+/// Checks that a fullerene with `atoms` carbons can exist (n = 20 or even n >= 24).
+pub fn check_fullerene_atoms(atoms: u64) -> Result<(), SpiralError> {
+    let reason = if atoms % 2 == 1 {
+        "a cubic cage has an even number of atoms"
+    } else if atoms < 20 {
+        "the smallest fullerene has 20 atoms"
+    } else if atoms == 22 {
+        "no fullerene has 22 atoms"
+    } else if atoms > 100_000 {
+        "too large for this tool (limit 100000 atoms)"
+    } else {
+        return Ok(());
+    };
+    Err(SpiralError::BadAtoms {
+        atoms,
+        reason: reason.to_string(),
+    })
+}
+
+// ---------------------------------------------------------------------------------------------
+// Winding
+// ---------------------------------------------------------------------------------------------
+
+/// Undo record for one face added by [`Winder::push`].
+#[derive(Debug, Clone, Copy)]
+struct Frame {
+    triangles: u32,
+    boundary_at: u32,
+    boundary_len: u16,
+    connected: [u32; MAX_FACE],
+    n_connected: u8,
+}
+
+/// Incremental spiral winding with undo, shared by [`Spiral::from_sizes`] and the enumerator.
+///
+/// The open boundary of the patch is a cyclic list of faces `boundary[head..]`; the new face is
+/// joined to its last entry (the previous face) and first entry (the earliest open face), and
+/// every face whose valency is used up is closed, which joins the new face to the next one along.
+#[derive(Debug, Clone)]
+pub(crate) struct Winder {
+    total: usize,
+    forbid_adjacent_pentagons: bool,
+    sizes: Vec<u8>,
+    valency: Vec<u8>,
+    boundary: Vec<u32>,
+    head: usize,
+    triangles: Vec<[u32; 3]>,
+    frames: Vec<Frame>,
+    saved: Vec<u32>,
+}
+
+impl Winder {
+    pub(crate) fn new(total_faces: usize, forbid_adjacent_pentagons: bool) -> Winder {
+        Winder {
+            total: total_faces,
+            forbid_adjacent_pentagons,
+            sizes: Vec::with_capacity(total_faces),
+            valency: Vec::with_capacity(total_faces),
+            boundary: Vec::with_capacity(total_faces),
+            head: 0,
+            triangles: Vec::with_capacity(2 * total_faces),
+            frames: Vec::with_capacity(total_faces),
+            saved: Vec::new(),
+        }
+    }
+
+    pub(crate) fn sizes(&self) -> &[u8] {
+        &self.sizes
+    }
+
+    pub(crate) fn triangles(&self) -> &[[u32; 3]] {
+        &self.triangles
+    }
+
+    pub(crate) fn is_complete(&self) -> bool {
+        self.sizes.len() == self.total
+    }
+
+    /// Adds the next face; on error the state is left as before the call.
+    pub(crate) fn push(&mut self, size: u8) -> Result<(), WindError> {
+        let k = self.sizes.len();
+        if !(3..=MAX_FACE as u8).contains(&size) || k >= self.total {
+            return Err(WindError::BadSize { position: k, size });
+        }
+        let active = &self.boundary[self.head..];
+        let frame = Frame {
+            triangles: self.triangles.len() as u32,
+            boundary_at: self.saved.len() as u32,
+            boundary_len: active.len() as u16,
+            connected: [0; MAX_FACE],
+            n_connected: 0,
+        };
+        self.saved.extend_from_slice(active);
+        self.frames.push(frame);
+        self.sizes.push(size);
+        self.valency.push(size);
+        let result = if k == 0 {
+            self.boundary.clear();
+            self.head = 0;
+            self.boundary.push(0);
+            Ok(())
+        } else if k == 1 {
+            self.connect(1, 0).map(|()| self.boundary.push(1))
+        } else if k + 1 < self.total {
+            self.attach_middle(k)
+        } else {
+            self.attach_last(k)
+        };
+        if result.is_err() {
+            self.pop();
+        }
+        result
+    }
+
+    /// Removes the last face added.
+    pub(crate) fn pop(&mut self) {
+        let frame = self.frames.pop().expect("pop matches a push");
+        for &c in &frame.connected[..frame.n_connected as usize] {
+            self.valency[c as usize] += 1;
+        }
+        self.sizes.pop();
+        self.valency.pop();
+        self.triangles.truncate(frame.triangles as usize);
+        let at = frame.boundary_at as usize;
+        let len = frame.boundary_len as usize;
+        self.boundary.clear();
+        self.boundary.extend_from_slice(&self.saved[at..at + len]);
+        self.head = 0;
+        self.saved.truncate(at);
+    }
+
+    /// Joins the newest face `k` to face `other`, recording it for undo.
+    fn connect(&mut self, k: u32, other: u32) -> Result<(), WindError> {
+        let position = k as usize;
+        if self.valency[position] == 0 {
+            return Err(WindError::Overfull { position });
+        }
+        if self.valency[other as usize] == 0 {
+            return Err(WindError::Jam { position });
+        }
+        if self.forbid_adjacent_pentagons
+            && self.sizes[position] == 5
+            && self.sizes[other as usize] == 5
+        {
+            return Err(WindError::AdjacentPentagons { position });
+        }
+        let frame = self.frames.last_mut().expect("connect runs inside push");
+        if frame.connected[..frame.n_connected as usize].contains(&other) {
+            return Err(WindError::Jam { position });
+        }
+        frame.connected[frame.n_connected as usize] = other;
+        frame.n_connected += 1;
+        self.valency[position] -= 1;
+        self.valency[other as usize] -= 1;
+        Ok(())
+    }
+
+    fn attach_middle(&mut self, k: usize) -> Result<(), WindError> {
+        let kk = k as u32;
+        if self.boundary.len() - self.head < 2 {
+            return Err(WindError::Jam { position: k });
+        }
+        let mut first = self.boundary[self.head];
+        let mut last = *self.boundary.last().expect("boundary has two faces");
+        self.connect(kk, last)?;
+        self.connect(kk, first)?;
+        self.triangles.push([first, last, kk]);
+        loop {
+            if self.valency[first as usize] == 0 {
+                if self.boundary.len() - self.head <= 2 {
+                    return Err(WindError::ClosedEarly { position: k });
+                }
+                self.head += 1;
+                let next = self.boundary[self.head];
+                self.connect(kk, next)?;
+                self.triangles.push([next, first, kk]);
+                first = next;
+            } else if self.valency[last as usize] == 0 {
+                if self.boundary.len() - self.head <= 2 {
+                    return Err(WindError::ClosedEarly { position: k });
+                }
+                self.boundary.pop();
+                let next = *self.boundary.last().expect("boundary has faces");
+                self.connect(kk, next)?;
+                self.triangles.push([kk, last, next]);
+                last = next;
+            } else {
+                break;
+            }
+        }
+        if self.valency[k] == 0 {
+            return Err(WindError::ClosedEarly { position: k });
+        }
+        self.boundary.push(kk);
+        Ok(())
+    }
+
+    fn attach_last(&mut self, k: usize) -> Result<(), WindError> {
+        let kk = k as u32;
+        let hole: Vec<u32> = self.boundary[self.head..].to_vec();
+        if hole.len() != self.sizes[k] as usize || hole.iter().any(|&f| self.valency[f as usize] != 1)
+        {
+            return Err(WindError::LastFace {
+                expected: self.sizes[k] as usize,
+                hole: hole.len(),
+            });
+        }
+        for &f in &hole {
+            self.connect(kk, f)?;
+        }
+        for i in 0..hole.len() {
+            let (x, y) = (hole[i], hole[(i + 1) % hole.len()]);
+            self.triangles.push([y, x, kk]);
+        }
+        self.head = self.boundary.len();
+        Ok(())
+    }
+}
+
+/// Winds a whole sequence and returns the dual triangles (one per atom).
+pub(crate) fn wind_triangles(sizes: &[u8], ipr: bool) -> Result<Vec<[u32; 3]>, WindError> {
+    if sizes.len() < 4 {
+        return Err(WindError::BadSize {
+            position: sizes.len(),
+            size: 0,
+        });
+    }
+    let mut w = Winder::new(sizes.len(), ipr);
+    for &s in sizes {
+        w.push(s)?;
+    }
+    Ok(w.triangles)
+}
+
+/// Builds the cage (primal graph) from oriented dual triangles: each triangle is an atom, and two
+/// atoms are bonded when their triangles share a dual edge.
+pub(crate) fn cage_from_triangles(triangles: &[[u32; 3]]) -> Cage {
+    let faces = triangles.iter().flatten().copied().max().map_or(0, |m| m as usize + 1);
+    // owner[a] lists (b, triangle) for every directed dual edge a→b.
+    let mut owner: Vec<Vec<(u32, u32)>> = vec![Vec::with_capacity(MAX_FACE); faces];
+    for (t, &[a, b, c]) in triangles.iter().enumerate() {
+        owner[a as usize].push((b, t as u32));
+        owner[b as usize].push((c, t as u32));
+        owner[c as usize].push((a, t as u32));
+    }
+    let across = |x: u32, y: u32| -> u32 {
+        owner[y as usize]
+            .iter()
+            .find(|(to, _)| *to == x)
+            .map(|&(_, t)| t)
+            .expect("a closed triangulation has both orientations of every edge")
+    };
+    let rotation = triangles
+        .iter()
+        .map(|&[a, b, c]| [across(a, b), across(b, c), across(c, a)])
+        .collect();
+    Cage::from_rotation(rotation).expect("a wound spiral is a valid cage")
+}
+
+// ---------------------------------------------------------------------------------------------
+// Reading spirals off a cage
+// ---------------------------------------------------------------------------------------------
+
+/// The direction in which a spiral turns, relative to the stored rotation of the cage.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, PartialOrd, Ord)]
+pub enum Sense {
+    Clockwise,
+    Anticlockwise,
+}
+
+/// Where a spiral starts: a first face, an adjacent second face, and a sense.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash)]
+pub struct Start {
+    pub first: FaceId,
+    pub second: FaceId,
+    pub sense: Sense,
+}
+
+/// The dual triangulation in a compact form for fast spiral reading.
+#[derive(Debug, Clone)]
+pub(crate) struct Dual {
+    size: Vec<u8>,
+    nbr: Vec<[u32; MAX_FACE]>,
+}
+
+impl Dual {
+    pub(crate) fn from_cage(cage: &Cage) -> Dual {
+        let mut size = Vec::with_capacity(cage.face_count());
+        let mut nbr = Vec::with_capacity(cage.face_count());
+        for ring in cage.dual() {
+            let mut a = [u32::MAX; MAX_FACE];
+            a[..ring.len()].copy_from_slice(ring);
+            size.push(ring.len() as u8);
+            nbr.push(a);
+        }
+        Dual { size, nbr }
+    }
+
+    /// From wound triangles: in triangle (a, b, c), c follows b around a.
+    pub(crate) fn from_triangles(sizes: &[u8], triangles: &[[u32; 3]]) -> Dual {
+        let f = sizes.len();
+        let mut succ = vec![[(u32::MAX, u32::MAX); MAX_FACE]; f];
+        let mut count = vec![0usize; f];
+        for &[a, b, c] in triangles {
+            for (x, y, z) in [(a, b, c), (b, c, a), (c, a, b)] {
+                succ[x as usize][count[x as usize]] = (y, z);
+                count[x as usize] += 1;
+            }
+        }
+        let mut nbr = vec![[u32::MAX; MAX_FACE]; f];
+        for x in 0..f {
+            let d = sizes[x] as usize;
+            let pairs = &succ[x][..d];
+            let mut cur = pairs[0].0;
+            for slot in nbr[x].iter_mut().take(d) {
+                *slot = cur;
+                cur = pairs
+                    .iter()
+                    .find(|p| p.0 == cur)
+                    .expect("rotation closes around every face")
+                    .1;
+            }
+        }
+        Dual {
+            size: sizes.to_vec(),
+            nbr,
+        }
+    }
+
+    pub(crate) fn faces(&self) -> usize {
+        self.size.len()
+    }
+
+    fn neighbours(&self, x: u32) -> &[u32] {
+        &self.nbr[x as usize][..self.size[x as usize] as usize]
+    }
+
+    /// Every start whose first face has size at most `max_first`, grouped by increasing first
+    /// face size so a caller can stop after the first size that completes.
+    fn starts_of_size(&self, size: u8) -> impl Iterator<Item = Start> + '_ {
+        (0..self.faces() as u32)
+            .filter(move |&f| self.size[f as usize] == size)
+            .flat_map(move |f| {
+                self.neighbours(f).iter().flat_map(move |&g| {
+                    [Sense::Anticlockwise, Sense::Clockwise].map(|sense| Start {
+                        first: FaceId(f),
+                        second: FaceId(g),
+                        sense,
+                    })
+                })
+            })
+    }
+}
+
+/// How a spiral read from one start compares with a reference sequence.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub(crate) enum Outcome {
+    /// The start completes and its sequence is smaller.
+    Smaller,
+    /// The start completes and reproduces the reference exactly.
+    Equal,
+    /// The sequence is larger (decided at the first difference; it may or may not complete).
+    Larger,
+    /// The start does not complete.
+    Jam,
+}
+
+/// Scratch space for reading spirals; reused across starts to avoid allocation.
+#[derive(Debug, Default)]
+pub(crate) struct Reader {
+    epoch: u32,
+    visited: Vec<u32>,
+    rem_epoch: Vec<u32>,
+    rem: Vec<u8>,
+    boundary: Vec<u32>,
+    pub(crate) order: Vec<u32>,
+}
+
+impl Reader {
+    fn reset(&mut self, faces: usize) {
+        if self.visited.len() < faces {
+            self.visited = vec![0; faces];
+            self.rem_epoch = vec![0; faces];
+            self.rem = vec![0; faces];
+            self.epoch = 0;
+        }
+        self.epoch = self.epoch.wrapping_add(1);
+        if self.epoch == 0 {
+            self.visited.iter_mut().for_each(|v| *v = 0);
+            self.rem_epoch.iter_mut().for_each(|v| *v = 0);
+            self.epoch = 1;
+        }
+        self.boundary.clear();
+        self.order.clear();
+    }
+
+    fn visited(&self, x: u32) -> bool {
+        self.visited[x as usize] == self.epoch
+    }
+
+    fn rem(&self, dual: &Dual, x: u32) -> u8 {
+        if self.rem_epoch[x as usize] == self.epoch {
+            self.rem[x as usize]
+        } else {
+            dual.size[x as usize]
+        }
+    }
+
+    /// Marks `x` visited; returns how many of its neighbours were already visited.
+    fn visit(&mut self, dual: &Dual, x: u32) -> usize {
+        self.visited[x as usize] = self.epoch;
+        self.order.push(x);
+        let mut seen = 0;
+        for &y in dual.neighbours(x) {
+            let r = self.rem(dual, y) - 1;
+            self.rem[y as usize] = r;
+            self.rem_epoch[y as usize] = self.epoch;
+            if self.visited(y) {
+                seen += 1;
+            }
+        }
+        seen
+    }
+
+    /// Reads the spiral from `start`, comparing against `reference` (if given) as it goes.
+    ///
+    /// With a reference, returns `Larger` at the first position where this spiral is bigger;
+    /// a smaller prefix is followed to the end because a jam later would disqualify it. Without
+    /// a reference the spiral is read to the end (`Equal` means it completed; the face order is
+    /// in `self.order`).
+    pub(crate) fn read(&mut self, dual: &Dual, start: Start, reference: Option<&[u8]>) -> Outcome {
+        let f = dual.faces();
+        self.reset(f);
+        let mut state = Ordering::Equal;
+        let (a, b) = (start.first.0, start.second.0);
+        let Some(pos) = dual.neighbours(a).iter().position(|&x| x == b) else {
+            return Outcome::Jam;
+        };
+        for (k, &x) in [a, b].iter().enumerate() {
+            if let (Some(r), Ordering::Equal) = (reference, state) {
+                state = dual.size[x as usize].cmp(&r[k]);
+                if state == Ordering::Greater {
+                    return Outcome::Larger;
+                }
+            }
+            self.visit(dual, x);
+            self.boundary.push(x);
+        }
+        let mut head = 0usize;
+        let d = dual.size[a as usize] as usize;
+        let third = match start.sense {
+            Sense::Anticlockwise => dual.nbr[a as usize][(pos + 1) % d],
+            Sense::Clockwise => dual.nbr[a as usize][(pos + d - 1) % d],
+        };
+        for k in 2..f {
+            let next = if k == 2 {
+                third
+            } else {
+                match self.apex(dual, head) {
+                    Some(x) => x,
+                    None => return Outcome::Jam,
+                }
+            };
+            if self.visited(next) {
+                return Outcome::Jam;
+            }
+            if let (Some(r), Ordering::Equal) = (reference, state) {
+                state = dual.size[next as usize].cmp(&r[k]);
+                if state == Ordering::Greater {
+                    return Outcome::Larger;
+                }
+            }
+            let open = self.boundary.len() - head;
+            let seen = self.visit(dual, next);
+            if k + 1 == f {
+                if open != seen || seen != dual.size[next as usize] as usize {
+                    return Outcome::Jam;
+                }
+                break;
+            }
+            // Close the faces at both ends of the boundary whose neighbours are all placed;
+            // each closure is one more join for the new face, as in winding.
+            let mut joins = 2;
+            loop {
+                let open_now = self.boundary.len() - head;
+                if open_now > 2 && self.rem(dual, self.boundary[head]) == 0 {
+                    head += 1;
+                    joins += 1;
+                } else if open_now > 2 && self.rem(dual, *self.boundary.last().expect("open")) == 0
+                {
+                    self.boundary.pop();
+                    joins += 1;
+                } else {
+                    break;
+                }
+            }
+            if joins != seen || self.rem(dual, next) == 0 {
+                return Outcome::Jam;
+            }
+            self.boundary.push(next);
+        }
+        match state {
+            Ordering::Less => Outcome::Smaller,
+            _ => Outcome::Equal,
+        }
+    }
+
+    /// The unvisited face adjacent to both the earliest open face and the previous face.
+    fn apex(&self, dual: &Dual, head: usize) -> Option<u32> {
+        let first = self.boundary[head];
+        let last = *self.boundary.last()?;
+        let ring = dual.neighbours(first);
+        let d = ring.len();
+        let p = ring.iter().position(|&x| x == last)?;
+        let (u, v) = (ring[(p + 1) % d], ring[(p + d - 1) % d]);
+        match (self.visited(u), self.visited(v)) {
+            (false, true) => Some(u),
+            (true, false) => Some(v),
+            _ => None,
+        }
+    }
+}
+
+/// Result of canonicity test on a freshly wound sequence.
+pub(crate) enum Canonicity {
+    NotCanonical,
+    /// Canonical, with this many starts reproducing it (the automorphism group order).
+    Canonical { automorphisms: u32 },
+}
+
+/// Tests whether `sizes` (which wound into `dual`) is the canonical spiral of its cage, trying
+/// only starts whose first face is no larger than the sequence's first face.
+pub(crate) fn test_canonical(dual: &Dual, sizes: &[u8], reader: &mut Reader) -> Canonicity {
+    let mut automorphisms = 0;
+    let mut first_sizes: Vec<u8> = dual.size.clone();
+    first_sizes.sort_unstable();
+    first_sizes.dedup();
+    for &s in first_sizes.iter().filter(|&&s| s <= sizes[0]) {
+        for start in dual.starts_of_size(s) {
+            match reader.read(dual, start, Some(sizes)) {
+                Outcome::Smaller => return Canonicity::NotCanonical,
+                Outcome::Equal => automorphisms += 1,
+                Outcome::Larger | Outcome::Jam => {}
+            }
+        }
+    }
+    Canonicity::Canonical { automorphisms }
+}
+
+/// One symmetry of a cage: a permutation of faces and of atoms.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct Automorphism {
+    /// `faces[f]` is the image of face f.
+    pub faces: Vec<u32>,
+    /// `atoms[v]` is the image of atom v.
+    pub atoms: Vec<u32>,
+    /// False for orientation-reversing (mirror-type) operations.
+    pub proper: bool,
+}
+
+/// The canonical spiral of a cage and everything read off with it.
+#[derive(Debug, Clone)]
+pub struct Canonical {
+    pub spiral: Spiral,
+    /// The start that gives the canonical spiral (the first one found).
+    pub start: Start,
+    /// All symmetries of the cage, identity first.
+    pub automorphisms: Vec<Automorphism>,
+}
+
+/// Reads the spiral from one start; `None` if it jams.
+pub fn spiral_from(cage: &Cage, start: Start) -> Option<Spiral> {
+    let dual = Dual::from_cage(cage);
+    let mut r = Reader::default();
+    match r.read(&dual, start, None) {
+        Outcome::Equal => Some(Spiral::from_wound(
+            r.order.iter().map(|&x| dual.size[x as usize]).collect(),
+        )),
+        _ => None,
+    }
+}
+
+/// The canonical (lexicographically smallest) spiral of a cage with its automorphisms, or
+/// `None` if no start completes (cages without any face spiral exist from 380 atoms on).
+pub fn canonical_spiral(cage: &Cage) -> Option<Canonical> {
+    let dual = Dual::from_cage(cage);
+    let mut reader = Reader::default();
+    let mut best: Option<(Vec<u8>, Start, Vec<(Start, Vec<u32>)>)> = None;
+    let mut sizes: Vec<u8> = dual.size.clone();
+    sizes.sort_unstable();
+    sizes.dedup();
+    for &s in &sizes {
+        for start in dual.starts_of_size(s) {
+            let reference = best.as_ref().map(|b| b.0.as_slice());
+            match reader.read(&dual, start, reference) {
+                Outcome::Smaller | Outcome::Equal if reference.is_none() => {
+                    let seq = reader.order.iter().map(|&x| dual.size[x as usize]).collect();
+                    best = Some((seq, start, vec![(start, reader.order.clone())]));
+                }
+                Outcome::Smaller => {
+                    let seq = reader.order.iter().map(|&x| dual.size[x as usize]).collect();
+                    best = Some((seq, start, vec![(start, reader.order.clone())]));
+                }
+                Outcome::Equal => {
+                    if let Some(b) = best.as_mut() {
+                        b.2.push((start, reader.order.clone()));
+                    }
+                }
+                Outcome::Larger | Outcome::Jam => {}
+            }
+        }
+        if best.is_some() {
+            break;
+        }
+    }
+    let (seq, start, orders) = best?;
+    let automorphisms = automorphisms_from_orders(cage, start, &orders);
+    Some(Canonical {
+        spiral: Spiral::from_wound(seq),
+        start,
+        automorphisms,
+    })
+}
+
+/// Turns the face orders of all starts that reproduce the canonical spiral into permutations:
+/// the symmetry maps the i-th face of the reference spiral to the i-th face of the other.
+fn automorphisms_from_orders(
+    cage: &Cage,
+    reference: Start,
+    orders: &[(Start, Vec<u32>)],
+) -> Vec<Automorphism> {
+    let (_, base) = &orders[0];
+    let mut atom_by_faces = std::collections::HashMap::with_capacity(cage.atoms());
+    for (v, key) in atom_face_triples(cage).into_iter().enumerate() {
+        atom_by_faces.insert(key, v as u32);
+    }
+    let triples = atom_face_triples(cage);
+    orders
+        .iter()
+        .map(|(start, order)| {
+            let mut faces = vec![0u32; order.len()];
+            for (i, &f) in base.iter().enumerate() {
+                faces[f as usize] = order[i];
+            }
+            let atoms = triples
+                .iter()
+                .map(|t| {
+                    let mut img = t.map(|f| faces[f as usize]);
+                    img.sort_unstable();
+                    atom_by_faces[&img]
+                })
+                .collect();
+            Automorphism {
+                faces,
+                atoms,
+                proper: start.sense == reference.sense,
+            }
+        })
+        .collect()
+}
+
+/// For every atom, the sorted triple of faces around it (unique in a polyhedron).
+fn atom_face_triples(cage: &Cage) -> Vec<[u32; 3]> {
+    let mut t = vec![[u32::MAX; 3]; cage.atoms()];
+    let mut n = vec![0usize; cage.atoms()];
+    for (fi, face) in cage.faces().iter().enumerate() {
+        for &v in face {
+            t[v as usize][n[v as usize]] = fi as u32;
+            n[v as usize] += 1;
+        }
+    }
+    for x in &mut t {
+        x.sort_unstable();
+    }
+    t
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    // from memory: C60-Ih canonical spiral, Fowler & Manolopoulos, An Atlas of Fullerenes (1995)
+    const C60_IH: [u64; 12] = [1, 7, 9, 11, 13, 15, 18, 20, 22, 24, 26, 32];
+    // from memory: C70-D5h canonical spiral, same Atlas
+    const C70_D5H: [u64; 12] = [1, 7, 9, 11, 13, 15, 27, 29, 31, 33, 35, 37];
+
+    #[test]
+    fn c60_winds_to_truncated_icosahedron() {
+        let s = Spiral::from_pentagon_indices(60, &C60_IH).unwrap();
+        let c = s.to_cage();
+        assert_eq!(c.atoms(), 60);
+        assert_eq!(c.edges().len(), 90);
+        assert_eq!(c.face_size_counts()[5], 12);
+        assert_eq!(c.face_size_counts()[6], 20);
+        assert!(c.is_ipr());
+    }
+
+    #[test]
+    fn c60_canonical_spiral_and_120_automorphisms() {
+        // Atlas (memory): C60-Ih has the spiral above and the full icosahedral group, order 120.
+        let c = Spiral::from_pentagon_indices(60, &C60_IH).unwrap().to_cage();
+        let canon = canonical_spiral(&c).unwrap();
+        assert_eq!(canon.spiral.pentagon_indices(), C60_IH.map(|x| x as u32).to_vec());
+        assert_eq!(canon.automorphisms.len(), 120);
+        assert_eq!(canon.automorphisms.iter().filter(|a| a.proper).count(), 60);
+    }
+
+    #[test]
+    fn c70_has_20_automorphisms() {
+        // Atlas (memory): C70-D5h, group order 20.
+        let c = Spiral::from_pentagon_indices(70, &C70_D5H).unwrap().to_cage();
+        let canon = canonical_spiral(&c).unwrap();
+        assert_eq!(canon.spiral.pentagon_indices(), C70_D5H.map(|x| x as u32).to_vec());
+        assert_eq!(canon.automorphisms.len(), 20);
+    }
+
+    #[test]
+    fn automorphisms_preserve_bonds() {
+        let c = Spiral::from_pentagon_indices(70, &C70_D5H).unwrap().to_cage();
+        for a in canonical_spiral(&c).unwrap().automorphisms {
+            for &[u, v] in c.edges() {
+                let (x, y) = (a.atoms[u as usize], a.atoms[v as usize]);
+                assert!(c.neighbours(crate::cage::VertexId(x)).contains(&crate::cage::VertexId(y)));
+            }
+        }
+    }
+
+    #[test]
+    fn bad_spirals_are_rejected_with_reasons() {
+        assert!(matches!(
+            Spiral::from_pentagon_indices(60, &[1, 2, 3, 4, 5, 6, 7, 8, 9, 10, 11, 12]),
+            Err(SpiralError::DoesNotClose(_))
+        ));
+        assert!(matches!(
+            Spiral::from_pentagon_indices(60, &[1, 2, 3]),
+            Err(SpiralError::WrongCount { .. })
+        ));
+        assert!(matches!(
+            Spiral::from_pentagon_indices(61, &C60_IH),
+            Err(SpiralError::BadAtoms { .. })
+        ));
+        assert!(matches!(
+            Spiral::from_pentagon_indices(22, &C60_IH),
+            Err(SpiralError::BadAtoms { .. })
+        ));
+        let mut big = C60_IH;
+        big[11] = 40;
+        assert!(matches!(
+            Spiral::from_pentagon_indices(60, &big),
+            Err(SpiralError::OutOfRange { .. })
+        ));
+    }
+
+    #[test]
+    fn dodecahedron_winds() {
+        let s = Spiral::from_sizes(vec![5; 12]).unwrap();
+        let c = s.to_cage();
+        assert_eq!(c.atoms(), 20);
+        let canon = canonical_spiral(&c).unwrap();
+        // Ih: 120 symmetries (the dodecahedron, a Platonic solid).
+        assert_eq!(canon.automorphisms.len(), 120);
+    }
+}
