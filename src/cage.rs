@@ -96,7 +96,11 @@ pub enum CageError {
     OutOfRange { vertex: u32, neighbour: u32 },
     /// The traced faces do not satisfy Euler's formula V - E + F = 2, so the rotation system
     /// does not describe a sphere.
-    NotSpherical { vertices: usize, edges: usize, faces: usize },
+    NotSpherical {
+        vertices: usize,
+        edges: usize,
+        faces: usize,
+    },
     /// A face is smaller than 3 or larger than [`MAX_FACE`].
     FaceSize { face: usize, size: usize },
     /// Two faces share more than one edge, or a face meets itself: not 3-connected.
@@ -109,15 +113,28 @@ impl fmt::Display for CageError {
     fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
         match self {
             CageError::BadNeighbours { vertex } => {
-                write!(f, "atom {vertex} is bonded to itself or twice to the same atom")
+                write!(
+                    f,
+                    "atom {vertex} is bonded to itself or twice to the same atom"
+                )
             }
             CageError::Asymmetric { u, v } => {
-                write!(f, "atom {u} lists atom {v} as a neighbour but not the reverse")
+                write!(
+                    f,
+                    "atom {u} lists atom {v} as a neighbour but not the reverse"
+                )
             }
             CageError::OutOfRange { vertex, neighbour } => {
-                write!(f, "atom {vertex} names neighbour {neighbour}, which does not exist")
+                write!(
+                    f,
+                    "atom {vertex} names neighbour {neighbour}, which does not exist"
+                )
             }
-            CageError::NotSpherical { vertices, edges, faces } => write!(
+            CageError::NotSpherical {
+                vertices,
+                edges,
+                faces,
+            } => write!(
                 f,
                 "the bonds do not form a closed cage: V - E + F = {vertices} - {edges} + {faces} \
                  is not 2 (Euler's formula)"
@@ -132,7 +149,10 @@ impl fmt::Display for CageError {
                  the graph is not a polyhedron"
             ),
             CageError::TooSmall { vertices } => {
-                write!(f, "{vertices} atoms are too few for a closed cage (need at least 4)")
+                write!(
+                    f,
+                    "{vertices} atoms are too few for a closed cage (need at least 4)"
+                )
             }
         }
     }
@@ -244,7 +264,10 @@ impl Cage {
     /// The index of edge {u, v}, if they are bonded.
     pub fn edge_index(&self, u: VertexId, v: VertexId) -> Option<EdgeId> {
         let key = if u <= v { [u.0, v.0] } else { [v.0, u.0] };
-        self.edges.binary_search(&key).ok().map(|i| EdgeId(i as u32))
+        self.edges
+            .binary_search(&key)
+            .ok()
+            .map(|i| EdgeId(i as u32))
     }
 
     /// Neighbouring faces of each face in cyclic order.
@@ -270,7 +293,9 @@ impl Cage {
     pub fn pentagon_adjacencies(&self) -> usize {
         self.edge_faces
             .iter()
-            .filter(|[a, b]| self.faces[*a as usize].len() == 5 && self.faces[*b as usize].len() == 5)
+            .filter(|[a, b]| {
+                self.faces[*a as usize].len() == 5 && self.faces[*b as usize].len() == 5
+            })
             .count()
     }
 
@@ -296,7 +321,10 @@ fn check_adjacency(rotation: &[[u32; 3]]) -> Result<(), CageError> {
         let v = v as u32;
         for &u in nb {
             if u >= n {
-                return Err(CageError::OutOfRange { vertex: v, neighbour: u });
+                return Err(CageError::OutOfRange {
+                    vertex: v,
+                    neighbour: u,
+                });
             }
         }
         if nb[0] == nb[1] || nb[1] == nb[2] || nb[0] == nb[2] || nb.contains(&v) {
@@ -312,7 +340,9 @@ fn check_adjacency(rotation: &[[u32; 3]]) -> Result<(), CageError> {
 }
 
 fn position(nb: &[u32; 3], u: u32) -> usize {
-    nb.iter().position(|&x| x == u).expect("adjacency checked symmetric")
+    nb.iter()
+        .position(|&x| x == u)
+        .expect("adjacency checked symmetric")
 }
 
 /// Traces every face by following darts; each dart (u→v) is used once.
@@ -435,7 +465,9 @@ mod tests {
         r[0].swap(0, 1);
         assert!(matches!(
             Cage::from_rotation(r),
-            Err(CageError::NotSpherical { .. }) | Err(CageError::FaceSize { .. }) | Err(CageError::NotPolyhedral { .. })
+            Err(CageError::NotSpherical { .. })
+                | Err(CageError::FaceSize { .. })
+                | Err(CageError::NotPolyhedral { .. })
         ));
     }
 

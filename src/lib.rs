@@ -6,5 +6,11 @@
 //! are screening heuristics, not predictions of real-world stability or safety.
 
 pub mod cage;
+pub mod catalogue;
+pub mod draw;
 pub mod enumerate;
+pub mod export;
+pub mod geometry;
+pub mod identify;
+pub mod score;
 pub mod spiral;

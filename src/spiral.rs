@@ -210,7 +210,10 @@ impl fmt::Display for Spiral {
     /// Fullerenes print as pentagon positions; other cages as the full size sequence.
     fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
         let list: Vec<String> = if self.face_set() == Some(FaceSet::Fullerene) {
-            self.pentagon_indices().iter().map(|i| i.to_string()).collect()
+            self.pentagon_indices()
+                .iter()
+                .map(|i| i.to_string())
+                .collect()
         } else {
             self.sizes.iter().map(|s| s.to_string()).collect()
         };
@@ -294,6 +297,15 @@ impl Winder {
 
     pub(crate) fn is_complete(&self) -> bool {
         self.sizes.len() == self.total
+    }
+
+    /// Sum of the free valencies of the open boundary faces (the length of the patch's
+    /// boundary circuit in the primal graph).
+    pub(crate) fn open_valency(&self) -> u32 {
+        self.boundary[self.head..]
+            .iter()
+            .map(|&f| self.valency[f as usize] as u32)
+            .sum()
     }
 
     /// Adds the next face; on error the state is left as before the call.
@@ -418,7 +430,8 @@ impl Winder {
     fn attach_last(&mut self, k: usize) -> Result<(), WindError> {
         let kk = k as u32;
         let hole: Vec<u32> = self.boundary[self.head..].to_vec();
-        if hole.len() != self.sizes[k] as usize || hole.iter().any(|&f| self.valency[f as usize] != 1)
+        if hole.len() != self.sizes[k] as usize
+            || hole.iter().any(|&f| self.valency[f as usize] != 1)
         {
             return Err(WindError::LastFace {
                 expected: self.sizes[k] as usize,
@@ -455,7 +468,12 @@ pub(crate) fn wind_triangles(sizes: &[u8], ipr: bool) -> Result<Vec<[u32; 3]>, W
 /// Builds the cage (primal graph) from oriented dual triangles: each triangle is an atom, and two
 /// atoms are bonded when their triangles share a dual edge.
 pub(crate) fn cage_from_triangles(triangles: &[[u32; 3]]) -> Cage {
-    let faces = triangles.iter().flatten().copied().max().map_or(0, |m| m as usize + 1);
+    let faces = triangles
+        .iter()
+        .flatten()
+        .copied()
+        .max()
+        .map_or(0, |m| m as usize + 1);
     // owner[a] lists (b, triangle) for every directed dual edge a→b.
     let mut owner: Vec<Vec<(u32, u32)>> = vec![Vec::with_capacity(MAX_FACE); faces];
     for (t, &[a, b, c]) in triangles.iter().enumerate() {
@@ -745,7 +763,9 @@ impl Reader {
 pub(crate) enum Canonicity {
     NotCanonical,
     /// Canonical, with this many starts reproducing it (the automorphism group order).
-    Canonical { automorphisms: u32 },
+    Canonical {
+        automorphisms: u32,
+    },
 }
 
 /// Tests whether `sizes` (which wound into `dual`) is the canonical spiral of its cage, trying
@@ -814,11 +834,19 @@ pub fn canonical_spiral(cage: &Cage) -> Option<Canonical> {
             let reference = best.as_ref().map(|b| b.0.as_slice());
             match reader.read(&dual, start, reference) {
                 Outcome::Smaller | Outcome::Equal if reference.is_none() => {
-                    let seq = reader.order.iter().map(|&x| dual.size[x as usize]).collect();
+                    let seq = reader
+                        .order
+                        .iter()
+                        .map(|&x| dual.size[x as usize])
+                        .collect();
                     best = Some((seq, start, vec![(start, reader.order.clone())]));
                 }
                 Outcome::Smaller => {
-                    let seq = reader.order.iter().map(|&x| dual.size[x as usize]).collect();
+                    let seq = reader
+                        .order
+                        .iter()
+                        .map(|&x| dual.size[x as usize])
+                        .collect();
                     best = Some((seq, start, vec![(start, reader.order.clone())]));
                 }
                 Outcome::Equal => {
@@ -918,9 +946,14 @@ mod tests {
     #[test]
     fn c60_canonical_spiral_and_120_automorphisms() {
         // Atlas (memory): C60-Ih has the spiral above and the full icosahedral group, order 120.
-        let c = Spiral::from_pentagon_indices(60, &C60_IH).unwrap().to_cage();
+        let c = Spiral::from_pentagon_indices(60, &C60_IH)
+            .unwrap()
+            .to_cage();
         let canon = canonical_spiral(&c).unwrap();
-        assert_eq!(canon.spiral.pentagon_indices(), C60_IH.map(|x| x as u32).to_vec());
+        assert_eq!(
+            canon.spiral.pentagon_indices(),
+            C60_IH.map(|x| x as u32).to_vec()
+        );
         assert_eq!(canon.automorphisms.len(), 120);
         assert_eq!(canon.automorphisms.iter().filter(|a| a.proper).count(), 60);
     }
@@ -928,19 +961,28 @@ mod tests {
     #[test]
     fn c70_has_20_automorphisms() {
         // Atlas (memory): C70-D5h, group order 20.
-        let c = Spiral::from_pentagon_indices(70, &C70_D5H).unwrap().to_cage();
+        let c = Spiral::from_pentagon_indices(70, &C70_D5H)
+            .unwrap()
+            .to_cage();
         let canon = canonical_spiral(&c).unwrap();
-        assert_eq!(canon.spiral.pentagon_indices(), C70_D5H.map(|x| x as u32).to_vec());
+        assert_eq!(
+            canon.spiral.pentagon_indices(),
+            C70_D5H.map(|x| x as u32).to_vec()
+        );
         assert_eq!(canon.automorphisms.len(), 20);
     }
 
     #[test]
     fn automorphisms_preserve_bonds() {
-        let c = Spiral::from_pentagon_indices(70, &C70_D5H).unwrap().to_cage();
+        let c = Spiral::from_pentagon_indices(70, &C70_D5H)
+            .unwrap()
+            .to_cage();
         for a in canonical_spiral(&c).unwrap().automorphisms {
             for &[u, v] in c.edges() {
                 let (x, y) = (a.atoms[u as usize], a.atoms[v as usize]);
-                assert!(c.neighbours(crate::cage::VertexId(x)).contains(&crate::cage::VertexId(y)));
+                assert!(c
+                    .neighbours(crate::cage::VertexId(x))
+                    .contains(&crate::cage::VertexId(y)));
             }
         }
     }

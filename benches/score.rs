@@ -1,0 +1,81 @@
+//! Per-descriptor cost of the Hückel, Kekulé and Pauling descriptors on C60-Ih and a C100 cage.
+//!
+//! Run with `cargo bench --bench score`; figures go to docs/performance.md.
+
+use cagerank::cage::Cage;
+use cagerank::score::{bonds, huckel, kekule};
+use cagerank::spiral::Spiral;
+use criterion::{black_box, criterion_group, criterion_main, Criterion};
+
+fn cage(atoms: u64, pentagons: &[u64]) -> Cage {
+    Spiral::from_pentagon_indices(atoms, pentagons)
+        .expect("benchmark spiral winds")
+        .to_cage()
+}
+
+fn cages() -> Vec<(&'static str, Cage)> {
+    vec![
+        // C60-Ih, Atlas spiral (memory, Fowler & Manolopoulos 1995).
+        (
+            "C60",
+            cage(60, &[1, 7, 9, 11, 13, 15, 18, 20, 22, 24, 26, 32]),
+        ),
+        // A C100 isomer: the first 11 pentagons of C60's spiral and the last face a pentagon.
+        ("C100", c100()),
+    ]
+}
+
+/// The first C100 spiral in a fixed family that winds (deterministic; any C100 will do for cost).
+fn c100() -> Cage {
+    let faces = 52u64;
+    for last_gap in 1..faces {
+        for a in 2..faces {
+            let mut p = vec![1, a, a + 2, a + 4, a + 6, a + 8];
+            let b = faces - last_gap;
+            p.extend([b - 10, b - 8, b - 6, b - 4, b - 2, faces]);
+            p.sort_unstable();
+            p.dedup();
+            if p.len() == 12 {
+                if let Ok(s) = Spiral::from_pentagon_indices(100, &p) {
+                    return s.to_cage();
+                }
+            }
+        }
+    }
+    panic!("no C100 spiral in the benchmark family winds");
+}
+
+fn bench(c: &mut Criterion) {
+    for (name, cage) in cages() {
+        let values = huckel::eigenvalues(&cage);
+        let pauling = bonds::pauling_bond_orders(&cage);
+        c.bench_function(&format!("{name} eigenvalues"), |b| {
+            b.iter(|| huckel::eigenvalues(black_box(&cage)))
+        });
+        c.bench_function(&format!("{name} summarize"), |b| {
+            b.iter(|| huckel::summarize(black_box(&values), 0))
+        });
+        c.bench_function(&format!("{name} kekule_count"), |b| {
+            b.iter(|| kekule::kekule_count(black_box(&cage)))
+        });
+        c.bench_function(&format!("{name} kekule_structure"), |b| {
+            b.iter(|| kekule::kekule_structure(black_box(&cage)))
+        });
+        c.bench_function(&format!("{name} pauling_bond_orders"), |b| {
+            b.iter(|| bonds::pauling_bond_orders(black_box(&cage)))
+        });
+        c.bench_function(&format!("{name} ring_pi_content"), |b| {
+            b.iter(|| bonds::ring_pi_content(black_box(&cage), black_box(&pauling)))
+        });
+        c.bench_function(&format!("{name} coulson_bond_orders"), |b| {
+            b.iter(|| bonds::coulson_bond_orders(black_box(&cage), 0))
+        });
+    }
+}
+
+criterion_group! {
+    name = benches;
+    config = Criterion::default().sample_size(30);
+    targets = bench
+}
+criterion_main!(benches);

@@ -1,0 +1,239 @@
+//! Merging shard catalogues (`--shard K/N` runs, possibly from different machines) into one.
+//!
+//! For each data file name, the shards must come from one run (same face set, size, list, unit
+//! count, program version) and together cover it exactly once; then their records are
+//! interleaved back into unit order and written as a whole-run file, byte-identical to what a
+//! single unsharded run writes. Whole-run files in the inputs are copied through the same writer.
+
+use super::format::{DataFile, DataWriter};
+use super::lock::Lock;
+use super::record::Record;
+use super::resume::describe;
+use super::{data_files, CatalogueError, RunInfo};
+use std::collections::{BTreeMap, HashMap};
+use std::fs;
+use std::path::{Path, PathBuf};
+
+/// What a merge wrote.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct MergeReport {
+    /// Data files written, with their record counts.
+    pub written: Vec<(PathBuf, u64)>,
+    /// Data files already present in the destination with the same run (left as they were).
+    pub unchanged: Vec<PathBuf>,
+}
+
+/// Merges the data files of the catalogue directories `inputs` into catalogue `into`.
+pub fn merge(inputs: &[PathBuf], into: &Path) -> Result<MergeReport, CatalogueError> {
+    let groups = group_inputs(inputs)?;
+    fs::create_dir_all(into).map_err(|e| CatalogueError::io("create", into, e))?;
+    let _lock = Lock::acquire(into)?;
+    let mut report = MergeReport {
+        written: Vec::new(),
+        unchanged: Vec::new(),
+    };
+    for (name, files) in groups {
+        let whole = check_group(&name, &files)?;
+        let dest = into.join(&name);
+        if dest.exists() {
+            let existing = DataFile::open(&dest)?;
+            if existing.info != whole {
+                return Err(CatalogueError::Merge(format!(
+                    "{} already holds a different run ({}); delete it or merge into another directory",
+                    dest.display(),
+                    describe(&existing.info)
+                )));
+            }
+            report.unchanged.push(dest);
+            continue;
+        }
+        let records = write_merged(&dest, &whole, files)?;
+        report.written.push((dest, records));
+    }
+    Ok(report)
+}
+
+/// Opens every data file of every input directory, grouped by file name.
+fn group_inputs(inputs: &[PathBuf]) -> Result<BTreeMap<String, Vec<DataFile>>, CatalogueError> {
+    let mut groups: BTreeMap<String, Vec<DataFile>> = BTreeMap::new();
+    for dir in inputs {
+        let files = data_files(dir)?;
+        if files.is_empty() {
+            return Err(CatalogueError::Missing {
+                dir: dir.clone(),
+                what: "data files to merge".into(),
+            });
+        }
+        for path in files {
+            let file = DataFile::open(&path)?;
+            groups.entry(file.info.file_name()).or_default().push(file);
+        }
+    }
+    Ok(groups)
+}
+
+/// Checks that the files of one group form exactly one run; returns the merged run's info.
+fn check_group(name: &str, files: &[DataFile]) -> Result<RunInfo, CatalogueError> {
+    let first = &files[0];
+    let whole = first.info.whole();
+    for f in &files[1..] {
+        if f.info.whole() != whole {
+            return Err(CatalogueError::Merge(format!(
+                "{} and {} come from different runs or program versions ({} vs {}); \
+                 re-run the odd one with the same version and settings",
+                first.path().display(),
+                f.path().display(),
+                describe(&first.info),
+                describe(&f.info)
+            )));
+        }
+    }
+    let mut by_shard: HashMap<Option<u32>, &DataFile> = HashMap::new();
+    for f in files {
+        let key = f.info.shard.map(|s| s.index);
+        if let Some(other) = by_shard.insert(key, f) {
+            let what = f
+                .info
+                .shard
+                .map_or("the whole run".to_string(), |s| format!("shard {s}"));
+            return Err(CatalogueError::Merge(format!(
+                "overlap: {} and {} both hold {what} of {name}; give each shard once",
+                other.path().display(),
+                f.path().display()
+            )));
+        }
+    }
+    check_coverage(name, files)?;
+    Ok(whole)
+}
+
+fn check_coverage(name: &str, files: &[DataFile]) -> Result<(), CatalogueError> {
+    let counts: Vec<Option<u32>> = files
+        .iter()
+        .map(|f| f.info.shard.map(|s| s.count))
+        .collect();
+    if files.len() == 1 && counts[0].is_none() {
+        return Ok(());
+    }
+    if counts.contains(&None) {
+        let whole = files
+            .iter()
+            .find(|f| f.info.shard.is_none())
+            .expect("invariant: found above");
+        return Err(CatalogueError::Merge(format!(
+            "overlap: {} holds the whole run of {name} and shards of it are given too",
+            whole.path().display()
+        )));
+    }
+    let n = counts[0].expect("invariant: all sharded");
+    if let Some(f) = files
+        .iter()
+        .find(|f| f.info.shard.map(|s| s.count) != Some(n))
+    {
+        return Err(CatalogueError::Merge(format!(
+            "{} is a shard of a {}-way split, others of a {n}-way split; shards must come from one split",
+            f.path().display(),
+            f.info.shard.map_or(1, |s| s.count)
+        )));
+    }
+    let present: Vec<u32> = files
+        .iter()
+        .filter_map(|f| f.info.shard.map(|s| s.index))
+        .collect();
+    let missing: Vec<String> = (1..=n)
+        .filter(|k| !present.contains(k))
+        .map(|k| format!("{k}/{n}"))
+        .collect();
+    if !missing.is_empty() {
+        return Err(CatalogueError::Merge(format!(
+            "missing shard(s) {} of {name}; run `--shard K/N` for them and merge all {n} together",
+            missing.join(", ")
+        )));
+    }
+    for f in files {
+        check_units_complete(f)?;
+    }
+    Ok(())
+}
+
+/// A shard file must hold exactly the units its shard owns.
+fn check_units_complete(f: &DataFile) -> Result<(), CatalogueError> {
+    let shard = f.info.shard.expect("invariant: only shards are checked");
+    let want: Vec<u32> = (0..f.info.unit_count).filter(|&u| shard.owns(u)).collect();
+    let have: Vec<u32> = f.index.units.iter().map(|u| u.0).collect();
+    if want != have {
+        return Err(CatalogueError::Merge(format!(
+            "{} (shard {shard}) does not hold exactly the units of its shard; rebuild that shard",
+            f.path().display()
+        )));
+    }
+    Ok(())
+}
+
+/// Reads a data file record by record, chunk after chunk.
+struct Stream {
+    file: DataFile,
+    next_chunk: usize,
+    buffer: std::vec::IntoIter<Record>,
+    unit_counts: HashMap<u32, u64>,
+}
+
+impl Stream {
+    fn new(file: DataFile) -> Stream {
+        let unit_counts = file.index.units.iter().copied().collect();
+        Stream {
+            file,
+            next_chunk: 0,
+            buffer: Vec::new().into_iter(),
+            unit_counts,
+        }
+    }
+
+    fn next(&mut self) -> Result<Record, CatalogueError> {
+        loop {
+            if let Some(r) = self.buffer.next() {
+                return Ok(r);
+            }
+            if self.next_chunk >= self.file.chunk_count() {
+                return Err(CatalogueError::corrupt(
+                    self.file.path(),
+                    super::Place::Index,
+                    "fewer records than its units account for".into(),
+                ));
+            }
+            let mut records = self.file.chunk_records(self.next_chunk)?;
+            for r in &mut records {
+                r.number = None;
+                r.ipr_number = None;
+            }
+            self.buffer = records.into_iter();
+            self.next_chunk += 1;
+        }
+    }
+}
+
+/// Interleaves the group's records back into unit order and writes the whole-run file.
+fn write_merged(dest: &Path, whole: &RunInfo, files: Vec<DataFile>) -> Result<u64, CatalogueError> {
+    let mut streams: BTreeMap<u32, Stream> = files
+        .into_iter()
+        .map(|f| (f.info.shard.map_or(1, |s| s.index), Stream::new(f)))
+        .collect();
+    let n = streams.len() as u32;
+    let mut out = DataWriter::create(dest, whole)?;
+    let mut total = 0;
+    for unit in 0..whole.unit_count {
+        let stream = streams
+            .get_mut(&(unit % n + 1))
+            .expect("invariant: coverage checked");
+        let count = stream.unit_counts.get(&unit).copied().unwrap_or(0);
+        for _ in 0..count {
+            let mut r = stream.next()?;
+            r.number = None;
+            out.push(r)?;
+        }
+        out.end_unit(unit, count);
+        total += count;
+    }
+    out.finish()?;
+    Ok(total)
+}

@@ -1,0 +1,265 @@
+//! The on-disk catalogue: a directory holding one data file per (face set, atom count, IPR or
+//! complete) run, written crash-safely and resumably, merged from shards, verified, and queried.
+//!
+//! A run is cut by the enumerator into deterministic units; [`Writer`] commits each finished
+//! unit durably and, when all are in, writes the data file as a pure function of the unit
+//! results in unit order, so an interrupted and resumed run (or a merge of shards) gives the same
+//! bytes as one uninterrupted run. Only this module touches catalogue files. It does not
+//! enumerate or score: records arrive already scored. The byte layout is documented in
+//! `docs/catalogue-format.md`.
+
+pub mod chunk;
+pub mod crc;
+pub mod format;
+pub mod lock;
+pub mod merge;
+pub mod query;
+pub mod record;
+pub mod resume;
+pub mod stats;
+pub mod verify;
+
+pub use format::{DataFile, FORMAT_VERSION, SCHEMA_VERSION};
+pub use merge::{merge, MergeReport};
+pub use query::{query, Filter, Query, RankKey};
+pub use record::{PointGroup, Record};
+pub use resume::made_by;
+pub use resume::{Finished, Writer};
+pub use verify::{verify, VerifyReport};
+
+use crate::cage::FaceSet;
+use serde::{Deserialize, Serialize};
+use std::fmt;
+use std::io;
+use std::path::{Path, PathBuf};
+
+/// Environment variable naming the default catalogue directory.
+pub const CATALOGUE_ENV: &str = "CAGERANK_CATALOGUE";
+/// Default catalogue directory when the variable is unset (relative to the working directory;
+/// the repository ships its catalogue there).
+pub const DEFAULT_DIR: &str = "catalogues";
+/// File extension of catalogue data files.
+pub const DATA_EXT: &str = "cgr";
+
+/// The catalogue directory to use: `$CAGERANK_CATALOGUE` if set and non-empty, else `./catalogues`.
+pub fn default_dir() -> PathBuf {
+    match std::env::var_os(CATALOGUE_ENV) {
+        Some(v) if !v.is_empty() => PathBuf::from(v),
+        _ => PathBuf::from(DEFAULT_DIR),
+    }
+}
+
+/// A shard of a run, 1-based "K/N": unit i belongs to shard (i % N) + 1.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, PartialOrd, Ord, Hash, Serialize, Deserialize)]
+pub struct ShardId {
+    pub index: u32,
+    pub count: u32,
+}
+
+impl ShardId {
+    pub fn owns(self, unit: u32) -> bool {
+        unit % self.count + 1 == self.index
+    }
+}
+
+impl fmt::Display for ShardId {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        write!(f, "{}/{}", self.index, self.count)
+    }
+}
+
+/// What a data file holds and how it was made (the header's provenance).
+#[derive(Debug, Clone, PartialEq, Eq, Serialize, Deserialize)]
+pub struct RunInfo {
+    pub face_set: FaceSet,
+    pub atoms: u32,
+    /// True for an IPR-only run, false for the complete list.
+    pub ipr: bool,
+    /// How many deterministic units the enumerator cut the run into.
+    pub unit_count: u32,
+    /// Length of the spiral prefix that defines a unit (provenance only).
+    pub unit_depth: u32,
+    /// Set for a partial catalogue written by `--shard K/N`.
+    pub shard: Option<ShardId>,
+    /// Program and version that computed the records, e.g. "cagerank 0.1.0".
+    pub made_by: String,
+}
+
+impl RunInfo {
+    /// The same run without the shard (what a merge produces).
+    pub fn whole(&self) -> RunInfo {
+        RunInfo {
+            shard: None,
+            ..self.clone()
+        }
+    }
+
+    /// File name of this run's data file, e.g. `fullerene-c100-ipr.cgr`.
+    pub fn file_name(&self) -> String {
+        data_file_name(self.face_set, self.atoms, self.ipr)
+    }
+
+    /// Human name, e.g. "C100 (IPR, fullerene)".
+    pub fn label(&self) -> String {
+        let list = if self.ipr { "IPR" } else { "all" };
+        format!("C{} ({list}, {})", self.atoms, self.face_set)
+    }
+}
+
+pub fn data_file_name(face_set: FaceSet, atoms: u32, ipr: bool) -> String {
+    let list = if ipr { "ipr" } else { "all" };
+    format!("{}-c{atoms}-{list}.{DATA_EXT}", face_set.name())
+}
+
+/// The data files in a catalogue directory, sorted by name.
+pub fn data_files(dir: &Path) -> Result<Vec<PathBuf>, CatalogueError> {
+    let entries = std::fs::read_dir(dir).map_err(|e| CatalogueError::io("list", dir, e))?;
+    let mut out = Vec::new();
+    for entry in entries {
+        let path = entry
+            .map_err(|e| CatalogueError::io("list", dir, e))?
+            .path();
+        if path.extension().is_some_and(|e| e == DATA_EXT) && path.is_file() {
+            out.push(path);
+        }
+    }
+    out.sort();
+    Ok(out)
+}
+
+/// Which part of a file is damaged.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Place {
+    Header,
+    Index,
+    Trailer,
+    Chunk(u32),
+    /// A file of committed units of a run in progress.
+    Part,
+}
+
+impl fmt::Display for Place {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        match self {
+            Place::Header => f.write_str("header"),
+            Place::Index => f.write_str("index"),
+            Place::Trailer => f.write_str("trailer"),
+            Place::Chunk(i) => write!(f, "chunk {i}"),
+            Place::Part => f.write_str("committed-units file"),
+        }
+    }
+}
+
+/// Everything that can go wrong with a catalogue; each message is one line saying what to do.
+#[derive(Debug)]
+pub enum CatalogueError {
+    Io {
+        action: &'static str,
+        path: PathBuf,
+        source: io::Error,
+    },
+    /// A checksum, length or decoded value does not fit.
+    Corrupt {
+        path: PathBuf,
+        place: Place,
+        detail: String,
+    },
+    /// Not a catalogue data file at all.
+    Foreign { path: PathBuf },
+    /// Written by a format or schema version this build does not read.
+    Version {
+        path: PathBuf,
+        format: u16,
+        schema: u16,
+    },
+    /// Another writer holds the catalogue.
+    Locked { dir: PathBuf, holder: String },
+    /// Existing files belong to a different run than the one requested.
+    RunMismatch { path: PathBuf, detail: String },
+    /// Shards that cannot be merged.
+    Merge(String),
+    /// The catalogue has nothing for what was asked.
+    Missing { dir: PathBuf, what: String },
+    /// A record handed to the writer is unfit to store.
+    BadRecord { unit: u32, detail: String },
+    /// `finish` was called before every unit was committed.
+    Incomplete { dir: PathBuf, pending: usize },
+}
+
+impl CatalogueError {
+    pub fn io(action: &'static str, path: &Path, source: io::Error) -> CatalogueError {
+        CatalogueError::Io {
+            action,
+            path: path.to_path_buf(),
+            source,
+        }
+    }
+
+    pub fn corrupt(path: &Path, place: Place, detail: String) -> CatalogueError {
+        CatalogueError::Corrupt {
+            path: path.to_path_buf(),
+            place,
+            detail,
+        }
+    }
+
+    /// True for errors that mean damaged or unreadable data (the CLI exits with code 2).
+    pub fn is_data_error(&self) -> bool {
+        matches!(
+            self,
+            CatalogueError::Corrupt { .. }
+                | CatalogueError::Foreign { .. }
+                | CatalogueError::Version { .. }
+        )
+    }
+}
+
+impl fmt::Display for CatalogueError {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        match self {
+            CatalogueError::Io { action, path, source } => {
+                write!(f, "cannot {action} {}: {source}", path.display())
+            }
+            CatalogueError::Corrupt { path, place, detail } => write!(
+                f,
+                "{}: {place} is damaged ({detail}); rebuild or restore this file",
+                path.display()
+            ),
+            CatalogueError::Foreign { path } => write!(
+                f,
+                "{} is not a cagerank catalogue file; move it out of the catalogue directory",
+                path.display()
+            ),
+            CatalogueError::Version { path, format, schema } => write!(
+                f,
+                "{}: format {format} / schema {schema} is not readable by this build \
+                 (reads format {FORMAT_VERSION} / schema {SCHEMA_VERSION}); rebuild it with this version",
+                path.display()
+            ),
+            CatalogueError::Locked { dir, holder } => write!(
+                f,
+                "catalogue {} is being written by {holder}; wait for it, or delete {}/{} if that process is gone",
+                dir.display(),
+                dir.display(),
+                lock::LOCK_FILE
+            ),
+            CatalogueError::RunMismatch { path, detail } => {
+                write!(f, "{}: {detail}", path.display())
+            }
+            CatalogueError::Merge(msg) => f.write_str(msg),
+            CatalogueError::Missing { dir, what } => {
+                write!(f, "catalogue {} has no {what}", dir.display())
+            }
+            CatalogueError::BadRecord { unit, detail } => {
+                write!(f, "unit {unit}: record cannot be stored ({detail})")
+            }
+            CatalogueError::Incomplete { dir, pending } => write!(
+                f,
+                "catalogue {}: {pending} unit(s) not yet committed; run the same command again to finish",
+                dir.display()
+            ),
+        }
+    }
+}
+
+impl std::error::Error for CatalogueError {}

@@ -1,0 +1,403 @@
+//! `cagerank identify`: name the isomer held in an XYZ or SDF file.
+//!
+//! Reads the file, asks `identify` for each structure's cage and canonical spiral, the isomer
+//! numbers (`identify::numbers`) and the descriptors (`score`), and prints a block (or one JSON
+//! line) per structure. The science lives in the library.
+
+use super::output::{write_line, Out};
+use super::CliError;
+use cagerank::cage::Cage;
+use cagerank::identify::numbers::{self, Number, Numbers};
+use cagerank::identify::{self, Format, Identity, Options, Structure};
+use cagerank::score::{self, huckel, kekule, Descriptors};
+use serde_json::{json, Map, Value};
+use std::path::PathBuf;
+
+/// Shown with the descriptors (after the text, on stderr with `--json`).
+const CAUTION: &str = "Caution: descriptors are screening heuristics, not predictions of \
+real-world stability or safety; refine candidates with quantum chemistry.";
+
+/// Files larger than this are refused rather than read into memory.
+const MAX_FILE_BYTES: u64 = 1 << 30;
+
+/// Identify the cage isomer(s) in an XYZ or SDF/MOL file (every frame or record).
+///
+/// Bonds are perceived from distances (sp2 carbon covalent radius 0.73 Å, Cordero et al. 2008,
+/// plus a tolerance); every atom must be a carbon with three neighbours.
+#[derive(clap::Args, Debug)]
+pub struct Args {
+    /// XYZ (.xyz) or MDL molfile/SD (.mol, .sdf) file; multi-frame and multi-record files allowed.
+    #[arg(value_name = "FILE")]
+    pub file: PathBuf,
+    /// One JSON object per structure instead of text.
+    #[arg(long)]
+    pub json: bool,
+    /// Elements to drop before bond perception, comma-separated (e.g. Sc,N for Sc3N@C80).
+    #[arg(long, value_name = "ELEMENTS")]
+    pub ignore_elements: Option<String>,
+    /// Catalogue directory to read isomer numbers from (needed for large cages).
+    #[arg(long, value_name = "DIR")]
+    pub catalogue: Option<PathBuf>,
+    /// Cage charge Q for the Hückel descriptors (e.g. -6 for Sc3N@C80).
+    #[arg(
+        long,
+        default_value_t = 0,
+        allow_hyphen_values = true,
+        value_name = "Q"
+    )]
+    pub charge: i32,
+    /// Added to the sum of covalent radii (Å) when deciding whether two atoms are bonded.
+    #[arg(long, default_value_t = identify::perceive::DEFAULT_TOLERANCE, value_name = "ANGSTROM")]
+    pub tolerance: f64,
+    /// File format, when the extension does not say (xyz or sdf).
+    #[arg(long, value_parser = parse_format, value_name = "FORMAT")]
+    pub format: Option<Format>,
+    /// Skip looking up isomer numbers (which may enumerate the whole size).
+    #[arg(long)]
+    pub no_numbers: bool,
+}
+
+fn parse_format(text: &str) -> Result<Format, String> {
+    match text.to_ascii_lowercase().as_str() {
+        "xyz" => Ok(Format::Xyz),
+        "sdf" | "sd" | "mol" => Ok(Format::Sdf),
+        _ => Err(format!("'{text}' is not a format; use xyz or sdf")),
+    }
+}
+
+pub fn run(args: Args) -> Result<(), CliError> {
+    let options = options(&args)?;
+    let structures = read_structures(&args)?;
+    let mut out = Out::stdout();
+    let mut failed = 0;
+    for (k, s) in structures.iter().enumerate() {
+        let label = Label {
+            index: k + 1,
+            of: structures.len(),
+            structure: s,
+        };
+        match identify::identify(s, &options) {
+            Ok(id) => report(&mut out, &label, &id, &args)?,
+            Err(e) if structures.len() == 1 => return Err(CliError::usage(e.to_string())),
+            Err(e) => {
+                failed += 1;
+                report_error(&mut out, &label, &e.to_string(), args.json)?;
+            }
+        }
+    }
+    if args.json {
+        eprintln!("{CAUTION}");
+    } else {
+        write_line(&mut out, CAUTION)?;
+    }
+    out.finish()?;
+    match failed {
+        0 => Ok(()),
+        n => Err(CliError::usage(format!(
+            "{n} of {} structures could not be identified (see above)",
+            structures.len()
+        ))),
+    }
+}
+
+fn options(args: &Args) -> Result<Options, CliError> {
+    if !(0.0..=1.5).contains(&args.tolerance) {
+        return Err(CliError::usage(
+            "--tolerance must be between 0 and 1.5 Å (default 0.40)",
+        ));
+    }
+    let ignore = match &args.ignore_elements {
+        Some(list) => identify::parse_element_list(list).map_err(CliError::usage)?,
+        None => Vec::new(),
+    };
+    Ok(Options {
+        ignore,
+        tolerance: args.tolerance,
+    })
+}
+
+fn read_structures(args: &Args) -> Result<Vec<Structure>, CliError> {
+    let path = &args.file;
+    let shown = path.display();
+    let meta = std::fs::metadata(path)
+        .map_err(|e| CliError::usage(format!("cannot read {shown}: {e}")))?;
+    if meta.len() > MAX_FILE_BYTES {
+        return Err(CliError::usage(format!(
+            "{shown} is larger than 1 GiB; split it into smaller files"
+        )));
+    }
+    let bytes =
+        std::fs::read(path).map_err(|e| CliError::usage(format!("cannot read {shown}: {e}")))?;
+    let format = args.format.or_else(|| Format::from_path(path));
+    identify::read(&bytes, format).map_err(|e| CliError::usage(format!("{shown}: {e}")))
+}
+
+/// Which structure of the file a report is about.
+struct Label<'a> {
+    index: usize,
+    of: usize,
+    structure: &'a Structure,
+}
+
+impl Label<'_> {
+    fn text(&self) -> String {
+        let title = self.structure.title.trim();
+        let title = if title.is_empty() {
+            String::new()
+        } else {
+            format!(", \"{}\"", title.chars().take(60).collect::<String>())
+        };
+        format!(
+            "structure {} of {} (line {}{title})",
+            self.index, self.of, self.structure.line
+        )
+    }
+
+    fn json(&self) -> Map<String, Value> {
+        let mut m = Map::new();
+        m.insert("structure".into(), json!(self.index));
+        m.insert("line".into(), json!(self.structure.line));
+        m.insert("title".into(), json!(self.structure.title));
+        m
+    }
+}
+
+fn report_error(
+    out: &mut Out,
+    label: &Label,
+    message: &str,
+    as_json: bool,
+) -> Result<(), CliError> {
+    if as_json {
+        let mut m = label.json();
+        m.insert("error".into(), json!(message));
+        write_line(out, &Value::Object(m).to_string())
+    } else {
+        write_line(out, &format!("{}: not identified: {message}", label.text()))
+    }
+}
+
+/// Numbers, descriptors and text for one identified structure.
+fn report(out: &mut Out, label: &Label, id: &Identity, args: &Args) -> Result<(), CliError> {
+    let Some(canonical) = &id.canonical else {
+        return report_spiralless(out, label, id, args);
+    };
+    let numbers = if args.no_numbers {
+        None
+    } else {
+        Some(
+            numbers::numbers(
+                &canonical.spiral,
+                id.cage.is_ipr(),
+                args.catalogue.as_deref(),
+            )
+            .map_err(|e| CliError::failed(e.to_string()))?,
+        )
+    };
+    let d = score::describe(&id.cage, canonical, args.charge)
+        .map_err(|e| CliError::usage(e.to_string()))?;
+    if args.json {
+        let mut m = label.json();
+        m.insert("ignored_atoms".into(), json!(id.ignored));
+        m.insert("atoms".into(), json!(id.cage.atoms()));
+        m.insert(
+            "number".into(),
+            json!(numbers.and_then(|n| n.complete.listed())),
+        );
+        m.insert(
+            "ipr_number".into(),
+            json!(numbers.and_then(|n| n.ipr.listed())),
+        );
+        m.insert(
+            "spiral".into(),
+            json!(score::spiral_numbers(&canonical.spiral)),
+        );
+        m.insert("ipr".into(), json!(id.cage.is_ipr()));
+        m.insert("charge".into(), json!(args.charge));
+        if let Value::Object(fields) = serde_json::to_value(&d)
+            .map_err(|e| CliError::failed(format!("cannot encode JSON: {e}")))?
+        {
+            m.extend(fields);
+        }
+        let notes = numbers
+            .map(|n| number_notes(&n, id.cage.atoms()))
+            .unwrap_or_default();
+        m.insert("notes".into(), json!(notes));
+        return write_line(out, &Value::Object(m).to_string());
+    }
+    let lines = text_block(
+        label,
+        id,
+        &canonical.spiral.to_string(),
+        numbers,
+        &d,
+        args.charge,
+    );
+    for line in lines {
+        write_line(out, &line)?;
+    }
+    Ok(())
+}
+
+fn id_text(atoms: usize, numbers: Option<Numbers>) -> String {
+    let Some(n) = numbers else {
+        return format!("C{atoms}");
+    };
+    let complete = n
+        .complete
+        .listed()
+        .map_or("?".to_string(), |k| k.to_string());
+    let ipr = n
+        .ipr
+        .listed()
+        .map_or(String::new(), |k| format!(" (IPR list: {k})"));
+    format!("C{atoms}:{complete}{ipr}")
+}
+
+/// Why a number is missing and how to get it.
+fn number_notes(n: &Numbers, atoms: usize) -> Vec<String> {
+    let mut notes = Vec::new();
+    for (list, number) in [("complete-list", n.complete), ("IPR-list", n.ipr)] {
+        if let Number::NotComputed { limit } = number {
+            notes.push(format!(
+                "{list} number not computed: enumerating the C{atoms} list is only done here up \
+                 to {limit} atoms; build a catalogue holding C{atoms} and pass --catalogue DIR"
+            ));
+        }
+    }
+    notes
+}
+
+fn text_block(
+    label: &Label,
+    id: &Identity,
+    spiral: &str,
+    numbers: Option<Numbers>,
+    d: &Descriptors,
+    charge: i32,
+) -> Vec<String> {
+    let atoms = id.cage.atoms();
+    let mut lines = vec![
+        format!(
+            "{}: {}  {}",
+            label.text(),
+            id_text(atoms, numbers),
+            d.point_group
+        ),
+        format!("  canonical spiral      {spiral}"),
+        cage_line(&id.cage, id.ignored),
+        format!(
+            "  symmetry              {}, {} automorphisms, {}",
+            d.point_group,
+            d.automorphisms,
+            if d.chiral { "chiral" } else { "achiral" }
+        ),
+        format!("  13C NMR pattern       {}", nmr_text(&d.nmr)),
+        format!(
+            "  pentagon adjacencies  {} ({})",
+            d.pentagon_adjacencies,
+            if id.cage.is_ipr() { "IPR" } else { "not IPR" }
+        ),
+        format!(
+            "  hexagon neighbours    k=0..6: {:?}, strain (std. dev. of k) {:.4}",
+            d.hexagon_neighbours, d.hexagon_strain
+        ),
+        format!(
+            "  Hückel (charge {charge:+})     HOMO {:.4}, LUMO {:.4}, gap {:.4} |beta|, {}",
+            d.homo,
+            d.lumo,
+            d.gap,
+            d.shell.name()
+        ),
+        format!("  Kekulé structures     {}", d.kekule),
+    ];
+    if let Some(n) = numbers {
+        lines.extend(
+            number_notes(&n, atoms)
+                .into_iter()
+                .map(|s| format!("  note: {s}")),
+        );
+    }
+    lines
+}
+
+fn cage_line(cage: &Cage, ignored: usize) -> String {
+    let counts = cage.face_size_counts();
+    let dropped = if ignored > 0 {
+        format!(" ({ignored} ignored atoms dropped)")
+    } else {
+        String::new()
+    };
+    format!(
+        "  cage                  {} atoms{dropped}, {} bonds, {} pentagons, {} hexagons",
+        cage.atoms(),
+        cage.edges().len(),
+        counts[5],
+        counts[6]
+    )
+}
+
+fn nmr_text(nmr: &[(u32, u32)]) -> String {
+    let lines: u32 = nmr.iter().map(|&(_, count)| count).sum();
+    let parts: Vec<String> = nmr
+        .iter()
+        .map(|&(size, count)| format!("{count} of intensity {size}"))
+        .collect();
+    format!("{lines} lines: {}", parts.join(", "))
+}
+
+/// A closed fullerene with no face spiral: what can be known without one.
+fn report_spiralless(
+    out: &mut Out,
+    label: &Label,
+    id: &Identity,
+    args: &Args,
+) -> Result<(), CliError> {
+    let cage = &id.cage;
+    let hmo = huckel::summarize(&huckel::eigenvalues(cage), args.charge)
+        .map_err(|e| CliError::usage(e.to_string()))?;
+    let kekule = kekule::kekule_count(cage).to_string();
+    let note = "no face spiral: this cage has no canonical spiral, so it has no isomer number \
+                and its symmetry is not computed here (spiral-less fullerenes exist from 380 atoms)";
+    if args.json {
+        let mut m = label.json();
+        m.insert("ignored_atoms".into(), json!(id.ignored));
+        m.insert("atoms".into(), json!(cage.atoms()));
+        m.insert("spiral".into(), Value::Null);
+        m.insert("ipr".into(), json!(cage.is_ipr()));
+        m.insert(
+            "pentagon_adjacencies".into(),
+            json!(cage.pentagon_adjacencies()),
+        );
+        m.insert("homo".into(), json!(hmo.homo));
+        m.insert("lumo".into(), json!(hmo.lumo));
+        m.insert("gap".into(), json!(hmo.gap));
+        m.insert("shell".into(), json!(hmo.shell));
+        m.insert("kekule".into(), json!(kekule));
+        m.insert("notes".into(), json!([note]));
+        return write_line(out, &Value::Object(m).to_string());
+    }
+    let lines = [
+        format!("{}: C{} (no face spiral)", label.text(), cage.atoms()),
+        cage_line(cage, id.ignored),
+        format!(
+            "  pentagon adjacencies  {} ({})",
+            cage.pentagon_adjacencies(),
+            if cage.is_ipr() { "IPR" } else { "not IPR" }
+        ),
+        format!(
+            "  Hückel (charge {:+})     HOMO {:.4}, LUMO {:.4}, gap {:.4} |beta|, {}",
+            args.charge,
+            hmo.homo,
+            hmo.lumo,
+            hmo.gap,
+            hmo.shell.name()
+        ),
+        format!("  Kekulé structures     {kekule}"),
+        format!("  note: {note}"),
+    ];
+    for line in lines {
+        write_line(out, &line)?;
+    }
+    Ok(())
+}

@@ -1,0 +1,100 @@
+//! Command-line front end: argument parsing (clap derive, the single source of help text) and
+//! printing. No science lives here; every subcommand calls into the library.
+
+mod draw;
+mod enumerate;
+mod export;
+mod identify;
+mod merge;
+mod output;
+mod progress;
+mod query;
+mod show;
+mod sizes;
+mod spiral;
+mod stats;
+mod verify;
+
+use clap::{Parser, Subcommand};
+use std::fmt;
+
+/// An error to show the user: one line, and the process exit code.
+#[derive(Debug)]
+pub struct CliError {
+    pub message: String,
+    pub code: i32,
+}
+
+impl CliError {
+    /// Bad input from the user (exit code 2).
+    pub fn usage(message: impl Into<String>) -> CliError {
+        CliError {
+            message: message.into(),
+            code: 2,
+        }
+    }
+
+    /// A failure while doing the work, e.g. an I/O error (exit code 1).
+    pub fn failed(message: impl Into<String>) -> CliError {
+        CliError {
+            message: message.into(),
+            code: 1,
+        }
+    }
+}
+
+impl fmt::Display for CliError {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        f.write_str(&self.message)
+    }
+}
+
+#[derive(Parser, Debug)]
+#[command(
+    name = "cagerank",
+    version,
+    about = "Enumerate, score, catalogue and export carbon-cage isomers.\n\nRankings are screening heuristics, not predictions of real-world stability or safety."
+)]
+pub struct Cli {
+    #[command(subcommand)]
+    pub command: Command,
+}
+
+#[derive(Subcommand, Debug)]
+pub enum Command {
+    /// Enumerate every isomer of the given sizes by canonical face spirals.
+    Enumerate(enumerate::Args),
+    /// Wind a face spiral and name the isomer it describes.
+    Spiral(spiral::Args),
+    /// Every descriptor of one isomer (screening heuristics, not stability predictions).
+    Show(show::Args),
+    /// Write relaxed 3D geometries of a shortlist as XYZ, SDF and JSON with a manifest.
+    Export(export::Args),
+    /// Draw a Schlegel diagram of one isomer as SVG.
+    Draw(draw::Args),
+    /// Rank and filter the isomers of one size held in a catalogue (screening heuristics).
+    Query(query::Args),
+    /// Combine shard catalogues (`--shard K/N` runs) into one.
+    Merge(merge::Args),
+    /// What a catalogue holds per size, with descriptor histograms.
+    Stats(stats::Args),
+    /// Check every file of a catalogue and report damage.
+    Verify(verify::Args),
+    /// Name the isomer(s) held in an XYZ or SDF file (bonds perceived from distances).
+    Identify(identify::Args),
+}
+
+pub fn run(cli: Cli) -> Result<(), CliError> {
+    match cli.command {
+        Command::Enumerate(a) => enumerate::run(a),
+        Command::Spiral(a) => spiral::run(a),
+        Command::Show(a) => show::run(a),
+        Command::Query(a) => query::run(a),
+        Command::Merge(a) => merge::run(a),
+        Command::Stats(a) => stats::run(a),
+        Command::Verify(a) => verify::run(a),
+        Command::Export(a) => export::run(a),
+        Command::Draw(a) => draw::run(a),
+        Command::Identify(a) => identify::run(a),
+    }
+}

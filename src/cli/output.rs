@@ -1,0 +1,45 @@
+//! Buffered standard output that treats a closed pipe (e.g. `| head`) as a normal end.
+
+use super::CliError;
+use std::io::{self, BufWriter, Write};
+
+pub struct Out {
+    inner: BufWriter<io::Stdout>,
+    closed: bool,
+}
+
+impl Out {
+    pub fn stdout() -> Out {
+        Out {
+            inner: BufWriter::new(io::stdout()),
+            closed: false,
+        }
+    }
+
+    pub fn finish(mut self) -> Result<(), CliError> {
+        if self.closed {
+            return Ok(());
+        }
+        match self.inner.flush() {
+            Err(e) if e.kind() != io::ErrorKind::BrokenPipe => {
+                Err(CliError::failed(format!("cannot write output: {e}")))
+            }
+            _ => Ok(()),
+        }
+    }
+}
+
+/// Writes one line; after the reader has gone away further lines are dropped silently.
+pub fn write_line(out: &mut Out, line: &str) -> Result<(), CliError> {
+    if out.closed {
+        return Ok(());
+    }
+    match writeln!(out.inner, "{line}") {
+        Ok(()) => Ok(()),
+        Err(e) if e.kind() == io::ErrorKind::BrokenPipe => {
+            out.closed = true;
+            Ok(())
+        }
+        Err(e) => Err(CliError::failed(format!("cannot write output: {e}"))),
+    }
+}

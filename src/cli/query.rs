@@ -1,0 +1,269 @@
+//! `cagerank query`: ranked, filtered isomers of one size from a catalogue, as a table, CSV or
+//! JSON lines (the same keys as `enumerate --json`, without per-bond arrays).
+//!
+//! Parsing and printing only; the search is `catalogue::query`.
+
+use super::output::{write_line, Out};
+use super::CliError;
+use cagerank::cage::FaceSet;
+use cagerank::catalogue::record::{parse_nmr, shell_from_name};
+use cagerank::catalogue::{self, CatalogueError, Filter, PointGroup, Query, Record};
+use cagerank::score::rank::parse_keys;
+use std::path::PathBuf;
+
+const CAUTION: &str = "Caution: rankings are screening heuristics, not predictions of safety or \
+real-world stability; refine candidates with quantum chemistry.";
+
+/// Output formats of `query`.
+#[derive(clap::ValueEnum, Clone, Copy, Debug, PartialEq, Eq)]
+pub enum Format {
+    Table,
+    Csv,
+    Json,
+}
+
+/// Rank and filter the isomers of one size stored in a catalogue.
+///
+/// Rankings are screening heuristics, not predictions of safety or real-world stability.
+#[derive(clap::Args, Debug)]
+pub struct Args {
+    /// Catalogue directory [default: $CAGERANK_CATALOGUE, else ./catalogues].
+    #[arg(long, value_name = "DIR")]
+    pub catalogue: Option<PathBuf>,
+    /// Number of atoms (cage size), e.g. 84.
+    #[arg(long, value_name = "N")]
+    pub atoms: u32,
+    /// IPR isomers only (numbers are IPR-list numbers).
+    #[arg(long)]
+    pub ipr: bool,
+    /// Face set of the cages: fullerene, 4-6 or 4-5-6.
+    #[arg(long, default_value = "fullerene", value_name = "SET")]
+    pub faces: String,
+    /// Show only the best K.
+    #[arg(long, value_name = "K")]
+    pub top: Option<usize>,
+    /// Sort keys, e.g. pentagon_adjacencies,-gap ('-' = largest first) [default: the screening order].
+    #[arg(long, value_name = "KEY,...")]
+    pub rank_by: Option<String>,
+    /// Keep cages with at most this many pentagon adjacencies.
+    #[arg(long, value_name = "N")]
+    pub max_pentagon_adjacencies: Option<u32>,
+    /// Keep cages whose Hückel HOMO-LUMO gap (in |beta|) is at least this.
+    #[arg(long, value_name = "GAP")]
+    pub min_gap: Option<f32>,
+    /// Keep one shell type: properly-closed, pseudo-closed, meta-closed or open.
+    #[arg(long, value_name = "TYPE")]
+    pub shell: Option<String>,
+    /// Keep one point group (Schoenflies symbol, e.g. D5h).
+    #[arg(long, value_name = "GROUP")]
+    pub point_group: Option<String>,
+    /// Keep cages with this 13C NMR pattern: MULTIPLICITYxLINES,... e.g. 8x10,4x1.
+    #[arg(long, value_name = "PATTERN")]
+    pub nmr: Option<String>,
+    /// Keep chiral cages only.
+    #[arg(long, conflicts_with = "achiral")]
+    pub chiral: bool,
+    /// Keep achiral cages only.
+    #[arg(long)]
+    pub achiral: bool,
+    /// Output format.
+    #[arg(long, value_enum, default_value_t = Format::Table)]
+    pub format: Format,
+}
+
+/// The catalogue directory from an option or the documented default.
+pub fn catalogue_dir(option: &Option<PathBuf>) -> PathBuf {
+    option.clone().unwrap_or_else(catalogue::default_dir)
+}
+
+/// Damaged data and missing data are the user's to fix (exit 2); I/O and locks are failures.
+pub fn catalogue_error(e: CatalogueError) -> CliError {
+    match e {
+        CatalogueError::Missing { .. } | CatalogueError::Merge(_) => CliError::usage(e.to_string()),
+        e if e.is_data_error() => CliError::usage(e.to_string()),
+        e => CliError::failed(e.to_string()),
+    }
+}
+
+fn parse_faces(text: &str) -> Result<FaceSet, CliError> {
+    [
+        FaceSet::Fullerene,
+        FaceSet::SquareHexagon,
+        FaceSet::SquarePentagonHexagon,
+    ]
+    .into_iter()
+    .find(|f| f.name() == text)
+    .ok_or_else(|| {
+        CliError::usage(format!(
+            "unknown face set '{text}'; use fullerene, 4-6 or 4-5-6"
+        ))
+    })
+}
+
+fn build_query(args: &Args) -> Result<Query, CliError> {
+    let shell = match &args.shell {
+        Some(s) => Some(shell_from_name(s).ok_or_else(|| {
+            CliError::usage(format!(
+                "unknown shell type '{s}'; use properly-closed, pseudo-closed, meta-closed or open"
+            ))
+        })?),
+        None => None,
+    };
+    let point_group = match &args.point_group {
+        Some(g) => Some(PointGroup::from_name(g).ok_or_else(|| {
+            CliError::usage(format!(
+                "'{g}' is not a point group a cage can have; use e.g. Ih, D5h, C2v, C1"
+            ))
+        })?),
+        None => None,
+    };
+    let nmr = match &args.nmr {
+        Some(p) => Some(parse_nmr(p).map_err(CliError::usage)?),
+        None => None,
+    };
+    let chiral = match (args.chiral, args.achiral) {
+        (true, _) => Some(true),
+        (_, true) => Some(false),
+        _ => None,
+    };
+    let rank_by = match &args.rank_by {
+        Some(text) => parse_keys(text).map_err(|e| CliError::usage(e.to_string()))?,
+        None => Vec::new(),
+    };
+    Ok(Query {
+        atoms: args.atoms,
+        face_set: parse_faces(&args.faces)?,
+        ipr: args.ipr,
+        filter: Filter {
+            max_pentagon_adjacencies: args.max_pentagon_adjacencies,
+            min_gap: args.min_gap,
+            shell,
+            point_group,
+            nmr,
+            chiral,
+            ipr_only: false,
+        },
+        rank_by,
+        top: args.top,
+    })
+}
+
+pub fn run(args: Args) -> Result<(), CliError> {
+    let query = build_query(&args)?;
+    let dir = catalogue_dir(&args.catalogue);
+    let records = catalogue::query(&dir, &query).map_err(catalogue_error)?;
+    let mut out = Out::stdout();
+    match args.format {
+        Format::Table => print_table(&mut out, &records)?,
+        Format::Csv => print_csv(&mut out, &records)?,
+        Format::Json => print_json(&mut out, &records)?,
+    }
+    if args.format == Format::Table {
+        write_line(&mut out, CAUTION)?;
+    } else {
+        eprintln!("{CAUTION}");
+    }
+    out.finish()
+}
+
+fn number_text(n: Option<u64>) -> String {
+    n.map_or("-".to_string(), |n| n.to_string())
+}
+
+fn nmr_text(r: &Record) -> String {
+    let parts: Vec<String> = r.nmr.iter().map(|(m, n)| format!("{m}x{n}")).collect();
+    parts.join(",")
+}
+
+const COLUMNS: [&str; 13] = [
+    "rank",
+    "number",
+    "ipr_number",
+    "point_group",
+    "pentagon_adjacencies",
+    "shell",
+    "hexagon_strain",
+    "gap",
+    "pi_energy",
+    "kekule",
+    "chiral",
+    "nmr",
+    "spiral",
+];
+
+fn cells(rank: usize, r: &Record) -> [String; 13] {
+    [
+        rank.to_string(),
+        number_text(r.number),
+        number_text(r.ipr_number),
+        r.point_group.name().to_string(),
+        r.pentagon_adjacencies.to_string(),
+        r.shell.name().to_string(),
+        format!("{:.4}", r.hexagon_strain),
+        format!("{:.4}", r.gap),
+        format!("{:.4}", r.pi_energy),
+        r.kekule.to_string(),
+        r.chiral.to_string(),
+        nmr_text(r),
+        r.spiral_text(),
+    ]
+}
+
+fn print_table(out: &mut Out, records: &[Record]) -> Result<(), CliError> {
+    let rows: Vec<[String; 13]> = records
+        .iter()
+        .enumerate()
+        .map(|(i, r)| cells(i + 1, r))
+        .collect();
+    let mut widths: Vec<usize> = COLUMNS.iter().map(|c| c.len()).collect();
+    for row in &rows {
+        for (w, cell) in widths.iter_mut().zip(row) {
+            *w = (*w).max(cell.len());
+        }
+    }
+    let line = |cells: Vec<&str>| {
+        let padded: Vec<String> = cells
+            .iter()
+            .zip(&widths)
+            .map(|(c, w)| format!("{c:<w$}"))
+            .collect();
+        padded.join("  ").trim_end().to_string()
+    };
+    write_line(out, &line(COLUMNS.to_vec()))?;
+    for row in &rows {
+        write_line(out, &line(row.iter().map(String::as_str).collect()))?;
+    }
+    if records.is_empty() {
+        write_line(out, "(no isomer matches)")?;
+    }
+    Ok(())
+}
+
+/// CSV quoting per RFC 4180: quote fields holding commas, quotes or spaces.
+fn csv_field(s: &str) -> String {
+    if s.contains([',', '"', ' ', '\n']) {
+        format!("\"{}\"", s.replace('"', "\"\""))
+    } else {
+        s.to_string()
+    }
+}
+
+fn print_csv(out: &mut Out, records: &[Record]) -> Result<(), CliError> {
+    write_line(out, &COLUMNS.join(","))?;
+    for (i, r) in records.iter().enumerate() {
+        let row: Vec<String> = cells(i + 1, r).iter().map(|c| csv_field(c)).collect();
+        write_line(out, &row.join(","))?;
+    }
+    Ok(())
+}
+
+fn print_json(out: &mut Out, records: &[Record]) -> Result<(), CliError> {
+    for (i, r) in records.iter().enumerate() {
+        let mut scored = r.to_scored();
+        scored.rank = Some(i as u64 + 1);
+        let text = serde_json::to_string(&scored)
+            .map_err(|e| CliError::failed(format!("cannot encode JSON: {e}")))?;
+        write_line(out, &text)?;
+    }
+    Ok(())
+}

@@ -1,0 +1,102 @@
+//! Topological coordinates: a first 3D embedding of a cage from its Hückel eigenvectors
+//! (Manolopoulos & Fowler, J. Chem. Phys. 96 (1992) 7603).
+//!
+//! For a cubic cage the top adjacency eigenvector is constant (x = 3); the next three, the
+//! p-type levels, vary like x, y and z over a sphere-like cage, so they serve as coordinates.
+//! Scaling and checking the embedding happen here; relaxation is left to `forcefield`/`minimise`.
+
+use crate::cage::Cage;
+use crate::score::huckel::eigen_decomposition;
+
+/// Mean bond length of the scaled embedding, in Å (between C60's 1.401 and 1.458 Å bonds;
+/// Hedberg et al., Science 254 (1991) 410).
+pub const START_BOND: f64 = 1.44;
+
+/// How many eigenvectors below the top one are tried when the first three fail.
+const CANDIDATE_LEVELS: usize = 6;
+/// Smallest acceptable distance between two atoms, as a fraction of the mean bond length.
+/// Common practice, no source: atoms that nearly coincide make a start the minimiser cannot untangle.
+const MIN_SEPARATION: f64 = 0.3;
+
+/// Topological coordinates of `cage` scaled to a mean bond of [`START_BOND`] Å, or `None` if no
+/// triple of low-lying p-type-like eigenvectors separates the atoms.
+///
+/// Each axis is scaled by 1/sqrt(3 - x) (x its eigenvalue): for a normalised eigenvector c,
+/// sum over bonds of (c_i - c_j)² = 3 - x, so the scaling makes each axis contribute equally to
+/// bond lengths, which in the continuum limit gives an elongated cage its true aspect ratio.
+pub fn coordinates(cage: &Cage) -> Option<Vec<[f64; 3]>> {
+    let (values, vectors) = eigen_decomposition(cage);
+    let top = (1 + CANDIDATE_LEVELS).min(values.len());
+    let mut best: Option<(f64, Vec<[f64; 3]>)> = None;
+    for triple in triples(1, top) {
+        let Some(coords) = embed(cage, &values, &vectors, triple) else {
+            continue;
+        };
+        let separation = min_separation(&coords) / START_BOND;
+        if separation >= MIN_SEPARATION {
+            return Some(coords);
+        }
+        if best.as_ref().is_none_or(|(s, _)| separation > *s) {
+            best = Some((separation, coords));
+        }
+    }
+    best.filter(|(s, _)| *s > 0.0).map(|(_, c)| c)
+}
+
+/// Index triples i < j < k in `from..to`, in lexicographic order so (1, 2, 3) comes first.
+fn triples(from: usize, to: usize) -> Vec<[usize; 3]> {
+    let mut out = Vec::new();
+    for i in from..to {
+        for j in i + 1..to {
+            for k in j + 1..to {
+                out.push([i, j, k]);
+            }
+        }
+    }
+    out
+}
+
+fn embed(
+    cage: &Cage,
+    values: &[f64],
+    vectors: &[Vec<f64>],
+    levels: [usize; 3],
+) -> Option<Vec<[f64; 3]>> {
+    let n = cage.atoms();
+    let scale = levels.map(|l| 1.0 / (3.0 - values[l]).max(1e-9).sqrt());
+    let mut coords: Vec<[f64; 3]> = (0..n)
+        .map(|i| std::array::from_fn(|d| scale[d] * vectors[levels[d]][i]))
+        .collect();
+    let mean = mean_bond(cage, &coords);
+    if !(mean.is_finite() && mean > 0.0) {
+        return None;
+    }
+    let factor = START_BOND / mean;
+    coords.iter_mut().flatten().for_each(|c| *c *= factor);
+    Some(coords)
+}
+
+/// Mean bond length of `coords` over the bonds of `cage`.
+pub fn mean_bond(cage: &Cage, coords: &[[f64; 3]]) -> f64 {
+    let sum: f64 = cage
+        .edges()
+        .iter()
+        .map(|&[a, b]| distance(coords[a as usize], coords[b as usize]))
+        .sum();
+    sum / cage.edges().len() as f64
+}
+
+pub fn distance(a: [f64; 3], b: [f64; 3]) -> f64 {
+    ((a[0] - b[0]).powi(2) + (a[1] - b[1]).powi(2) + (a[2] - b[2]).powi(2)).sqrt()
+}
+
+/// Smallest distance between any two atoms.
+pub fn min_separation(coords: &[[f64; 3]]) -> f64 {
+    let mut best = f64::INFINITY;
+    for (i, &a) in coords.iter().enumerate() {
+        for &b in &coords[i + 1..] {
+            best = best.min(distance(a, b));
+        }
+    }
+    best
+}

@@ -1,0 +1,68 @@
+//! The `enumerate` and `spiral` commands end to end: outputs and one-line errors.
+
+use std::process::Command;
+
+fn run(args: &[&str]) -> (i32, String, String) {
+    let out = Command::new(env!("CARGO_BIN_EXE_cagerank"))
+        .args(args)
+        .output()
+        .expect("binary runs");
+    (
+        out.status.code().unwrap_or(-1),
+        String::from_utf8_lossy(&out.stdout).into_owned(),
+        String::from_utf8_lossy(&out.stderr).into_owned(),
+    )
+}
+
+#[test]
+fn count_only_json_per_size() {
+    // OEIS A007894: C20 1, C22 0, C24 1, C26 1, C28 2.
+    let (code, out, _) = run(&["enumerate", "20..28", "--count-only", "--json", "--quiet"]);
+    assert_eq!(code, 0);
+    let lines: Vec<&str> = out.lines().collect();
+    assert_eq!(lines[0], r#"{"atoms":20,"ipr":false,"isomers":1}"#);
+    assert_eq!(lines[1], r#"{"atoms":22,"ipr":false,"isomers":0}"#);
+    assert_eq!(lines[4], r#"{"atoms":28,"ipr":false,"isomers":2}"#);
+}
+
+#[test]
+fn json_isomer_line_for_c60_ih() {
+    let (code, out, _) = run(&["enumerate", "60", "--json", "--quiet", "--count-only"]);
+    assert_eq!(code, 0);
+    assert!(out.contains(r#""isomers":1812"#));
+    let (_, out, _) = run(&["enumerate", "60", "--json", "--quiet"]);
+    let last = out.lines().last().unwrap();
+    let v: serde_json::Value = serde_json::from_str(last).unwrap();
+    assert_eq!(v["number"], 1812);
+    assert_eq!(v["ipr_number"], 1);
+    assert_eq!(v["automorphisms"], 120);
+    assert_eq!(v["spiral"], serde_json::json!([1, 7, 9, 11, 13, 15, 18, 20, 22, 24, 26, 32]));
+}
+
+#[test]
+fn spiral_command_names_the_isomer() {
+    let (code, out, _) = run(&["spiral", "1,7,9,11,13,15,18,20,22,24,26,32", "--json"]);
+    assert_eq!(code, 0);
+    let v: serde_json::Value = serde_json::from_str(out.trim()).unwrap();
+    assert_eq!(v["number"], 1812);
+}
+
+#[test]
+fn bad_input_gives_one_line_and_exit_2() {
+    for args in [
+        vec!["enumerate", "22"],
+        vec!["enumerate", "61"],
+        vec!["enumerate", "18"],
+        vec!["enumerate", "sixty"],
+        vec!["enumerate", "60", "--shard", "0/3"],
+        vec!["spiral", "1,2,3"],
+        vec!["spiral", "1,2,3,4,5,6,7,8,9,10,11,12", "--atoms", "60"],
+        vec!["spiral", "1,7,x"],
+    ] {
+        let (code, out, err) = run(&args);
+        assert_eq!(code, 2, "{args:?}: {err}");
+        assert!(out.is_empty(), "{args:?}");
+        assert!(!err.contains("panicked"), "{args:?}: {err}");
+        assert!(!err.trim().is_empty());
+    }
+}

@@ -1,0 +1,217 @@
+//! Schlegel drawings: the SVG is well-formed XML, no two drawn bonds cross, every face is drawn
+//! exactly once, and the outer face is the most symmetric one.
+
+use cagerank::cage::Cage;
+use cagerank::draw::{self, schlegel, Colouring, OuterFace};
+use cagerank::spiral::{canonical_spiral, Spiral};
+
+// from memory: Fowler & Manolopoulos, An Atlas of Fullerenes (1995): C60-Ih and C70-D5h spirals.
+const C60: [u64; 12] = [1, 7, 9, 11, 13, 15, 18, 20, 22, 24, 26, 32];
+const C70: [u64; 12] = [1, 7, 9, 11, 13, 15, 27, 29, 31, 33, 35, 37];
+
+fn cage(atoms: u64, pentagons: &[u64]) -> Cage {
+    Spiral::from_pentagon_indices(atoms, pentagons)
+        .unwrap()
+        .to_cage()
+}
+
+fn svg_of(cage: &Cage, options: draw::Options) -> String {
+    let autos = canonical_spiral(cage).unwrap().automorphisms;
+    let mut out = Vec::new();
+    draw::schlegel_svg(&mut out, cage, &autos, "test & <title>", options).unwrap();
+    String::from_utf8(out).unwrap()
+}
+
+/// A tiny well-formedness check (XML 1.0, W3C 2008, section 2.1 in spirit): tags nest and close,
+/// attribute values are quoted, no raw `<` or `&` outside markup and entities.
+fn check_well_formed(text: &str) {
+    let mut stack: Vec<String> = Vec::new();
+    let mut rest = text;
+    let mut roots = 0;
+    while let Some(open) = rest.find('<') {
+        check_text(&rest[..open]);
+        let close = rest[open..].find('>').expect("unclosed tag") + open;
+        let tag = &rest[open + 1..close];
+        rest = &rest[close + 1..];
+        if tag.starts_with('?') {
+            assert!(tag.ends_with('?'));
+            continue;
+        }
+        if let Some(name) = tag.strip_prefix('/') {
+            assert_eq!(
+                stack.pop().as_deref(),
+                Some(name.trim()),
+                "mismatched </{name}>"
+            );
+            continue;
+        }
+        let self_closing = tag.ends_with('/');
+        let body = tag.trim_end_matches('/');
+        let name = body.split_whitespace().next().expect("tag name");
+        check_attributes(&body[name.len()..]);
+        if stack.is_empty() {
+            roots += 1;
+        }
+        if !self_closing {
+            stack.push(name.to_string());
+        }
+    }
+    check_text(rest);
+    assert!(stack.is_empty(), "unclosed elements {stack:?}");
+    assert_eq!(roots, 1);
+}
+
+fn check_text(text: &str) {
+    let mut rest = text;
+    while let Some(amp) = rest.find('&') {
+        let semi = rest[amp..].find(';').expect("unterminated entity") + amp;
+        assert!(["&amp;", "&lt;", "&gt;", "&quot;", "&apos;"].contains(&&rest[amp..=semi]));
+        rest = &rest[semi + 1..];
+    }
+}
+
+fn check_attributes(mut attrs: &str) {
+    loop {
+        attrs = attrs.trim_start();
+        if attrs.is_empty() {
+            return;
+        }
+        let eq = attrs.find('=').expect("attribute without value");
+        assert!(!attrs[..eq].trim().contains(char::is_whitespace));
+        let value = &attrs[eq + 1..];
+        assert!(value.starts_with('"'), "unquoted attribute in {attrs}");
+        let end = value[1..].find('"').expect("unterminated attribute") + 1;
+        check_text(&value[1..end]);
+        assert!(!value[1..end].contains('<'));
+        attrs = &value[end + 1..];
+    }
+}
+
+fn attr(tag: &str, name: &str) -> f64 {
+    let key = format!(" {name}=\"");
+    let start = tag.find(&key).unwrap() + key.len();
+    let end = tag[start..].find('"').unwrap() + start;
+    tag[start..end].parse().unwrap()
+}
+
+fn lines(svg: &str) -> Vec<[f64; 4]> {
+    svg.lines()
+        .filter(|l| l.starts_with("<line class=\"bond\""))
+        .map(|l| [attr(l, "x1"), attr(l, "y1"), attr(l, "x2"), attr(l, "y2")])
+        .collect()
+}
+
+fn cross(o: [f64; 2], a: [f64; 2], b: [f64; 2]) -> f64 {
+    (a[0] - o[0]) * (b[1] - o[1]) - (a[1] - o[1]) * (b[0] - o[0])
+}
+
+/// Proper crossing of two segments that share no endpoint (orientation test; de Berg et al.,
+/// Computational Geometry, 3rd ed. 2008, section 2.1). Touching within `eps` counts as crossing.
+fn segments_cross(s: [f64; 4], t: [f64; 4]) -> bool {
+    let (p1, p2, q1, q2) = ([s[0], s[1]], [s[2], s[3]], [t[0], t[1]], [t[2], t[3]]);
+    let same = |a: [f64; 2], b: [f64; 2]| (a[0] - b[0]).abs() < 1e-6 && (a[1] - b[1]).abs() < 1e-6;
+    if same(p1, q1) || same(p1, q2) || same(p2, q1) || same(p2, q2) {
+        return false;
+    }
+    let eps = 1e-9;
+    let d1 = cross(q1, q2, p1);
+    let d2 = cross(q1, q2, p2);
+    let d3 = cross(p1, p2, q1);
+    let d4 = cross(p1, p2, q2);
+    d1 * d2 <= eps && d3 * d4 <= eps
+}
+
+fn check_drawing(cage: &Cage, options: draw::Options) {
+    let svg = svg_of(cage, options);
+    check_well_formed(&svg);
+    let segments = lines(&svg);
+    assert_eq!(segments.len(), cage.edges().len(), "every bond drawn once");
+    for i in 0..segments.len() {
+        for j in i + 1..segments.len() {
+            assert!(
+                !segments_cross(segments[i], segments[j]),
+                "bonds {i} and {j} cross"
+            );
+        }
+    }
+    let mut faces: Vec<usize> = svg
+        .lines()
+        .filter(|l| l.starts_with("<path class=\"face\""))
+        .map(|l| attr(l, "data-face") as usize)
+        .collect();
+    faces.sort_unstable();
+    assert_eq!(
+        faces,
+        (0..cage.face_count()).collect::<Vec<_>>(),
+        "every face drawn exactly once"
+    );
+    assert!(svg.contains("screening heuristics"));
+}
+
+#[test]
+fn c60_c70_and_small_cages_draw_without_crossings() {
+    let c20 = cage(20, &(1..=12).collect::<Vec<u64>>());
+    for (c, outer) in [
+        (cage(60, &C60), OuterFace::Auto),
+        (cage(60, &C60), OuterFace::Hexagon),
+        (cage(70, &C70), OuterFace::Auto),
+        (c20, OuterFace::Pentagon),
+    ] {
+        for colouring in [
+            Colouring::Faces,
+            Colouring::BondOrders,
+            Colouring::PiContent,
+        ] {
+            check_drawing(
+                &c,
+                draw::Options {
+                    colouring,
+                    labels: true,
+                    outer,
+                },
+            );
+        }
+    }
+}
+
+#[test]
+fn every_c40_isomer_draws_without_crossings() {
+    use cagerank::enumerate::{enumerate, Options, Spec};
+    let mut count = 0;
+    enumerate(
+        &Spec::fullerene(40, false).unwrap(),
+        &Options::default(),
+        |_, _| {},
+        |iso| {
+            check_drawing(&iso.spiral.to_cage(), draw::Options::default());
+            count += 1;
+        },
+    )
+    .unwrap();
+    // OEIS A007894: 40 isomers of C40.
+    assert_eq!(count, 40);
+}
+
+#[test]
+fn outer_face_is_the_most_symmetric_of_its_kind() {
+    let c60 = cage(60, &C60);
+    let autos = canonical_spiral(&c60).unwrap().automorphisms;
+    // Ih (order 120) acts transitively on 12 pentagons (stabiliser 120/12 = 10) and on 20
+    // hexagons (stabiliser 6): Atlas of Fullerenes (1995), from memory.
+    let auto = schlegel::choose_outer(&c60, &autos, OuterFace::Auto).unwrap();
+    assert_eq!(c60.faces()[auto].len(), 5);
+    assert_eq!(schlegel::stabiliser(auto, &autos), 10);
+    let hex = schlegel::choose_outer(&c60, &autos, OuterFace::Hexagon).unwrap();
+    assert_eq!(schlegel::stabiliser(hex, &autos), 6);
+}
+
+#[test]
+fn asking_for_a_missing_face_kind_is_an_error() {
+    let c20 = cage(20, &(1..=12).collect::<Vec<u64>>());
+    let options = draw::Options {
+        outer: OuterFace::Hexagon,
+        ..draw::Options::default()
+    };
+    let err = draw::schlegel_svg(&mut Vec::new(), &c20, &[], "C20", options).unwrap_err();
+    assert!(matches!(err, draw::DrawError::NoSuchFace { size: 6 }));
+}

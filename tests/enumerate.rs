@@ -1,0 +1,216 @@
+//! The enumerator checked against published counts and independent oracles.
+
+use cagerank::cage::{Cage, VertexId};
+use cagerank::enumerate::{self, Isomer, Options, Shard, Spec};
+use cagerank::spiral::canonical_spiral;
+use petgraph::algo::{connected_components, is_isomorphic};
+use petgraph::graph::UnGraph;
+use proptest::prelude::*;
+
+fn all(atoms: u64, ipr: bool, threads: usize, shard: Option<Shard>) -> Vec<Isomer> {
+    let spec = Spec::fullerene(atoms, ipr).unwrap();
+    let mut out = Vec::new();
+    let opts = Options { threads, shard };
+    enumerate::enumerate(&spec, &opts, |_, _| {}, |i| out.push(i)).unwrap();
+    out
+}
+
+fn count(atoms: u64, ipr: bool) -> u64 {
+    enumerate::count(&Spec::fullerene(atoms, ipr).unwrap(), 0).unwrap()
+}
+
+#[test]
+fn complete_counts_match_oeis_a007894_for_20_to_70() {
+    // OEIS A007894 (number of fullerenes with n atoms), n = 20, 22, ..., 70.
+    let published = [
+        1u64, 0, 1, 1, 2, 3, 6, 6, 15, 17, 40, 45, 89, 116, 199, 271, 437, 580, 924, 1205, 1812,
+        2385, 3465, 4478, 6332, 8149,
+    ];
+    for (i, &expected) in published.iter().enumerate() {
+        let n = 20 + 2 * i as u64;
+        if n == 22 {
+            continue; // no fullerene C22: Spec refuses the size (tested below)
+        }
+        assert_eq!(count(n, false), expected, "C{n}");
+    }
+    assert!(Spec::fullerene(22, false).is_err());
+}
+
+#[test]
+fn ipr_counts_match_oeis_a046880() {
+    // OEIS A046880 (IPR fullerenes): n = 60, 70, 72, ..., 90 and none for 62..68.
+    let published = [
+        (60u64, 1u64),
+        (62, 0),
+        (64, 0),
+        (66, 0),
+        (68, 0),
+        (70, 1),
+        (72, 1),
+        (74, 1),
+        (76, 2),
+        (78, 5),
+        (80, 7),
+        (82, 9),
+        (84, 24),
+        (86, 19),
+        (88, 35),
+        (90, 46),
+        (100, 450),
+    ];
+    for (n, expected) in published {
+        assert_eq!(count(n, true), expected, "IPR C{n}");
+    }
+}
+
+#[test]
+#[ignore = "heavy: several minutes; run with cargo test --release -- --ignored"]
+fn c100_complete_count_matches_oeis() {
+    // OEIS A007894: 285914 fullerenes with 100 atoms.
+    assert_eq!(count(100, false), 285_914);
+}
+
+#[test]
+#[ignore = "heavy: IPR C120; run with cargo test --release -- --ignored"]
+fn ipr_c120_count_matches_oeis() {
+    // OEIS A046880: 10774 IPR fullerenes with 120 atoms.
+    assert_eq!(count(120, true), 10_774);
+}
+
+#[test]
+fn c60_ih_is_last_of_1812_and_first_ipr() {
+    // Fowler & Manolopoulos, Atlas of Fullerenes (1995), from memory: C60-Ih is C60:1812 of
+    // 1812, spiral 1 7 9 11 13 15 18 20 22 24 26 32, 120 symmetries.
+    let list = all(60, false, 0, None);
+    assert_eq!(list.len(), 1812);
+    let last = list.last().unwrap();
+    assert_eq!(last.number, Some(1812));
+    assert_eq!(last.ipr_number, Some(1));
+    assert_eq!(last.spiral.pentagon_indices(), vec![1, 7, 9, 11, 13, 15, 18, 20, 22, 24, 26, 32]);
+    assert_eq!(last.automorphisms, 120);
+    assert_eq!(list.iter().filter(|i| i.ipr).count(), 1);
+}
+
+#[test]
+fn c70_d5h_is_last_of_8149() {
+    // Atlas (from memory): C70-D5h is C70:8149 of 8149 with 20 symmetries.
+    let list = all(70, false, 0, None);
+    let last = list.last().unwrap();
+    assert_eq!(last.number, Some(8149));
+    assert_eq!(last.automorphisms, 20);
+    assert_eq!(last.spiral.pentagon_indices(), vec![1, 7, 9, 11, 13, 15, 27, 29, 31, 33, 35, 37]);
+}
+
+fn graph(c: &Cage) -> UnGraph<(), ()> {
+    UnGraph::from_edges(c.edges().iter().map(|&[u, v]| (u, v)))
+}
+
+#[test]
+fn isomers_up_to_40_are_pairwise_non_isomorphic_by_petgraph() {
+    // Independent oracle: petgraph's VF2 isomorphism test on the cage graphs.
+    for n in (20..=40).step_by(2).filter(|&n| n != 22) {
+        let graphs: Vec<_> = all(n, false, 0, None)
+            .iter()
+            .map(|i| graph(&i.spiral.to_cage()))
+            .collect();
+        for a in 0..graphs.len() {
+            for b in a + 1..graphs.len() {
+                assert!(!is_isomorphic(&graphs[a], &graphs[b]), "C{n}: {a} ~ {b}");
+            }
+        }
+    }
+}
+
+#[test]
+fn every_wound_cage_is_a_fullerene_polyhedron() {
+    // Euler's formula and the fullerene face counts (12 pentagons, n/2 - 10 hexagons).
+    for n in [20u64, 36, 48, 60] {
+        for iso in all(n, false, 0, None) {
+            let c = iso.spiral.to_cage();
+            let (v, e, f) = (c.atoms(), c.edges().len(), c.face_count());
+            assert_eq!(v, n as usize);
+            assert_eq!(v + f, e + 2, "Euler");
+            assert_eq!(e, 3 * v / 2, "cubic");
+            let counts = c.face_size_counts();
+            assert_eq!(counts[5], 12);
+            assert_eq!(counts[6], v / 2 - 10);
+            assert_eq!(connected_components(&graph(&c)), 1);
+            for x in 0..v as u32 {
+                assert_eq!(c.neighbours(VertexId(x)).len(), 3);
+            }
+            assert_eq!(iso.ipr, c.is_ipr());
+        }
+    }
+}
+
+#[test]
+fn canonical_spiral_of_each_isomer_is_itself_with_its_symmetry_count() {
+    for iso in all(50, false, 0, None) {
+        let canon = canonical_spiral(&iso.spiral.to_cage()).unwrap();
+        assert_eq!(canon.spiral, iso.spiral);
+        assert_eq!(canon.automorphisms.len() as u32, iso.automorphisms);
+    }
+}
+
+#[test]
+fn all_starts_search_finds_nothing_more_up_to_44() {
+    // Checks the pentagon-start restriction: lifting it adds no isomer in this range.
+    for n in (20..=44).step_by(2).filter(|&n| n != 22) {
+        let mut spec = Spec::fullerene(n, false).unwrap();
+        let default = enumerate::count(&spec, 0).unwrap();
+        spec.all_starts = true;
+        assert_eq!(enumerate::count(&spec, 0).unwrap(), default, "C{n}");
+    }
+}
+
+#[test]
+fn shards_partition_the_run() {
+    let single: Vec<_> = all(48, false, 0, None).into_iter().map(|i| i.spiral).collect();
+    for parts in [2u32, 3, 7] {
+        let mut union = Vec::new();
+        for k in 1..=parts {
+            let shard = Shard { index: k, count: parts };
+            let got = all(48, false, 0, Some(shard));
+            assert!(got.iter().all(|i| i.number.is_none()));
+            union.extend(got.into_iter().map(|i| i.spiral));
+        }
+        union.sort();
+        let before = union.len();
+        union.dedup();
+        assert_eq!(before, union.len(), "overlap with {parts} shards");
+        assert_eq!(union, single, "{parts} shards");
+    }
+}
+
+#[test]
+fn output_does_not_depend_on_thread_count() {
+    assert_eq!(all(52, false, 1, None), all(52, false, 2, None));
+    assert_eq!(all(80, true, 1, None), all(80, true, 2, None));
+}
+
+fn random_perm(n: usize, seed: u64) -> Vec<u32> {
+    let mut p: Vec<u32> = (0..n as u32).collect();
+    let mut s = seed | 1;
+    for i in (1..n).rev() {
+        s ^= s << 13;
+        s ^= s >> 7;
+        s ^= s << 17;
+        p.swap(i, (s % (i as u64 + 1)) as usize);
+    }
+    p
+}
+
+proptest! {
+    #![proptest_config(ProptestConfig::with_cases(64))]
+    // A relabelled cage has the same canonical spiral and symmetry count.
+    #[test]
+    fn relabelling_keeps_the_canonical_spiral(which in 0usize..45, seed in any::<u64>()) {
+        let list = all(42, false, 0, None);
+        let iso = &list[which % list.len()];
+        let cage = iso.spiral.to_cage();
+        let moved = cage.relabelled(&random_perm(cage.atoms(), seed));
+        let canon = canonical_spiral(&moved).unwrap();
+        prop_assert_eq!(&canon.spiral, &iso.spiral);
+        prop_assert_eq!(canon.automorphisms.len() as u32, iso.automorphisms);
+    }
+}
