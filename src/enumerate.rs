@@ -360,47 +360,83 @@ pub fn enumerate(
 pub fn enumerate_until(
     spec: &Spec,
     opts: &Options,
-    mut progress: impl FnMut(usize, usize),
+    progress: impl FnMut(usize, usize),
     mut sink: impl FnMut(Isomer) -> ControlFlow<()>,
 ) -> Result<(), EnumerateError> {
+    enumerate_mapped(spec, opts, progress, |_| (), |iso, ()| sink(iso))
+}
+
+/// Runs the given units on `threads` workers in windows, applying `map` to every isomer on the
+/// worker that found it (e.g. scoring), and hands each window's results to `on_window` in unit
+/// order. Callers that persist results (the catalogue) commit one window at a time, so an
+/// interrupted run loses at most the window in flight.
+pub fn run_units_mapped<R: Send>(
+    spec: &Spec,
+    units: &[Unit],
+    threads: usize,
+    map: impl Fn(&Found) -> R + Sync,
+    mut on_window: impl FnMut(Vec<(u32, Vec<(Found, R)>)>) -> ControlFlow<()>,
+) -> Result<(), EnumerateError> {
     let pool = rayon::ThreadPoolBuilder::new()
-        .num_threads(opts.threads)
+        .num_threads(threads)
         .build()
         .map_err(|e| EnumerateError::Threads(e.to_string()))?;
+    let window = 64 * pool.current_num_threads().max(1);
+    for chunk in units.chunks(window) {
+        let results: Vec<(u32, Vec<(Found, R)>)> = pool.install(|| {
+            chunk
+                .par_iter()
+                .map(|u| {
+                    let found = run_unit(spec, u);
+                    let mapped = found.into_iter().map(|f| {
+                        let r = map(&f);
+                        (f, r)
+                    });
+                    (u.index, mapped.collect())
+                })
+                .collect()
+        });
+        if on_window(results).is_break() {
+            break;
+        }
+    }
+    Ok(())
+}
+
+/// As [`enumerate_until`], with `map` applied in parallel to every isomer before numbering.
+pub fn enumerate_mapped<R: Send>(
+    spec: &Spec,
+    opts: &Options,
+    mut progress: impl FnMut(usize, usize),
+    map: impl Fn(&Found) -> R + Sync,
+    mut sink: impl FnMut(Isomer, R) -> ControlFlow<()>,
+) -> Result<(), EnumerateError> {
     let mine: Vec<Unit> = units(spec)
         .into_iter()
         .filter(|u| opts.shard.is_none_or(|s| s.owns(u.index)))
         .collect();
-    let window = 64 * pool.current_num_threads().max(1);
     let numbered = opts.shard.is_none();
-    let (mut number, mut ipr_number) = (0u64, 0u64);
-    let mut done = 0;
-    for chunk in mine.chunks(window) {
-        let results: Vec<Vec<Found>> =
-            pool.install(|| chunk.par_iter().map(|u| run_unit(spec, u)).collect());
-        for (unit, found) in chunk.iter().zip(results) {
-            for f in found {
+    let (mut number, mut ipr_number, mut done) = (0u64, 0u64, 0usize);
+    run_units_mapped(spec, &mine, opts.threads, map, |window| {
+        done += window.len();
+        progress(done, mine.len());
+        for (unit, found) in window {
+            for (f, r) in found {
                 number += 1;
-                if f.ipr {
-                    ipr_number += 1;
-                }
+                ipr_number += u64::from(f.ipr);
                 let iso = Isomer {
                     number: (numbered && !spec.ipr).then_some(number),
                     ipr_number: (numbered && f.ipr).then_some(ipr_number),
                     spiral: f.spiral,
                     automorphisms: f.automorphisms,
                     ipr: f.ipr,
-                    unit: unit.index,
+                    unit,
                 };
-                if sink(iso).is_break() {
-                    return Ok(());
-                }
+                sink(iso, r)?;
             }
         }
-        done += chunk.len();
-        progress(done, mine.len());
-    }
-    Ok(())
+        ControlFlow::Continue(())
+    })
 }
 
 /// Number of isomers of a size (all units, every thread).

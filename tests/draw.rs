@@ -105,20 +105,28 @@ fn cross(o: [f64; 2], a: [f64; 2], b: [f64; 2]) -> f64 {
     (a[0] - o[0]) * (b[1] - o[1]) - (a[1] - o[1]) * (b[0] - o[0])
 }
 
-/// Proper crossing of two segments that share no endpoint (orientation test; de Berg et al.,
-/// Computational Geometry, 3rd ed. 2008, section 2.1). Touching within `eps` counts as crossing.
+/// Whether two segments that share no endpoint intersect, touching included (orientation
+/// tests with the collinear special cases; de Berg et al., Computational Geometry, 3rd ed. 2008,
+/// section 2.1).
 fn segments_cross(s: [f64; 4], t: [f64; 4]) -> bool {
     let (p1, p2, q1, q2) = ([s[0], s[1]], [s[2], s[3]], [t[0], t[1]], [t[2], t[3]]);
     let same = |a: [f64; 2], b: [f64; 2]| (a[0] - b[0]).abs() < 1e-6 && (a[1] - b[1]).abs() < 1e-6;
     if same(p1, q1) || same(p1, q2) || same(p2, q1) || same(p2, q2) {
         return false;
     }
-    let eps = 1e-9;
-    let d1 = cross(q1, q2, p1);
-    let d2 = cross(q1, q2, p2);
-    let d3 = cross(p1, p2, q1);
-    let d4 = cross(p1, p2, q2);
-    d1 * d2 <= eps && d3 * d4 <= eps
+    let (d1, d2) = (cross(q1, q2, p1), cross(q1, q2, p2));
+    let (d3, d4) = (cross(p1, p2, q1), cross(p1, p2, q2));
+    if d1 * d2 < 0.0 && d3 * d4 < 0.0 {
+        return true;
+    }
+    let on = |a: [f64; 2], b: [f64; 2], p: [f64; 2], d: f64| {
+        d.abs() < 1e-9
+            && p[0] >= a[0].min(b[0]) - 1e-9
+            && p[0] <= a[0].max(b[0]) + 1e-9
+            && p[1] >= a[1].min(b[1]) - 1e-9
+            && p[1] <= a[1].max(b[1]) + 1e-9
+    };
+    on(q1, q2, p1, d1) || on(q1, q2, p2, d2) || on(p1, p2, q1, d3) || on(p1, p2, q2, d4)
 }
 
 fn check_drawing(cage: &Cage, options: draw::Options) {

@@ -4,8 +4,12 @@ use super::output::{write_line, Out};
 use super::progress;
 use super::sizes::{parse_sizes, Size};
 use super::CliError;
-use cagerank::enumerate::{self, Isomer, Options, Shard, Spec};
+use cagerank::catalogue::{self, made_by, Record, RunInfo, ShardId, Writer};
+use cagerank::enumerate::{self, Found, Isomer, Options, Shard, Spec};
+use cagerank::score::{self, huckel, Descriptors, ScoreError, Scored};
 use serde_json::json;
+use std::ops::ControlFlow;
+use std::path::PathBuf;
 
 #[derive(clap::Args, Debug)]
 pub struct Args {
@@ -34,6 +38,13 @@ pub struct Args {
     /// Also search sequences starting on a larger face (slow): a completeness check.
     #[arg(long)]
     pub all_starts: bool,
+    /// Cage charge for the Hückel descriptors, e.g. -6 for a cage holding a trimetallic nitride.
+    #[arg(long, default_value_t = 0, allow_hyphen_values = true)]
+    pub charge: i32,
+    /// Write scored isomers into this catalogue directory (resumable: run the same command again
+    /// after an interruption). Default directory: $CAGERANK_CATALOGUE or ./catalogues.
+    #[arg(long, value_name = "DIR", num_args = 0..=1, default_missing_value = "")]
+    pub catalogue: Option<PathBuf>,
 }
 
 pub fn run(args: Args) -> Result<(), CliError> {
@@ -78,6 +89,13 @@ fn count_line(args: &Args, atoms: u64, count: u64) -> String {
 
 fn run_size(out: &mut Out, args: &Args, atoms: u64) -> Result<(), CliError> {
     let spec = spec_for(args, atoms)?;
+    if !args.count_only {
+        huckel::filled_orbitals(atoms as usize, args.charge)
+            .map_err(|e| CliError::usage(e.to_string()))?;
+    }
+    if let Some(dir) = &args.catalogue {
+        return write_catalogue(out, args, &spec, dir);
+    }
     let opts = Options {
         threads: args.threads,
         shard: args.shard,
@@ -85,23 +103,28 @@ fn run_size(out: &mut Out, args: &Args, atoms: u64) -> Result<(), CliError> {
     let bar = progress::bar(0, &format!("C{atoms}"), args.quiet);
     let mut count = 0u64;
     let mut failure = None;
-    enumerate::enumerate_until(
+    let score = |f: &Found| (!args.count_only).then(|| score::describe_spiral(&f.spiral, args.charge));
+    enumerate::enumerate_mapped(
         &spec,
         &opts,
         |done, total| {
             bar.set_length(total as u64);
             bar.set_position(done as u64);
         },
-        |iso| {
+        score,
+        |iso, scored| {
             count += 1;
-            if args.count_only {
-                return std::ops::ControlFlow::Continue(());
-            }
-            match write_line(out, &isomer_line(args, atoms, &iso)) {
-                Ok(()) => std::ops::ControlFlow::Continue(()),
+            let Some(scored) = scored else {
+                return ControlFlow::Continue(());
+            };
+            match scored
+                .map_err(|e| CliError::failed(format!("scoring {}: {e}", iso.spiral)))
+                .and_then(|d| write_line(out, &isomer_line(args, atoms, &iso, d)))
+            {
+                Ok(()) => ControlFlow::Continue(()),
                 Err(e) => {
                     failure = Some(e);
-                    std::ops::ControlFlow::Break(())
+                    ControlFlow::Break(())
                 }
             }
         },
@@ -117,17 +140,101 @@ fn run_size(out: &mut Out, args: &Args, atoms: u64) -> Result<(), CliError> {
     Ok(())
 }
 
-fn isomer_line(args: &Args, atoms: u64, iso: &Isomer) -> String {
+/// Enumerates the units the catalogue still lacks, scores them and commits them window by
+/// window; a killed run resumes from the last committed window.
+fn write_catalogue(out: &mut Out, args: &Args, spec: &Spec, dir: &PathBuf) -> Result<(), CliError> {
+    let dir = if dir.as_os_str().is_empty() {
+        catalogue::default_dir()
+    } else {
+        dir.clone()
+    };
+    let all_units = enumerate::units(spec);
+    let info = RunInfo {
+        face_set: spec.face_set,
+        atoms: spec.atoms,
+        ipr: spec.ipr,
+        unit_count: all_units.len() as u32,
+        unit_depth: all_units.first().map_or(0, |u| u.prefix.len() as u32),
+        shard: args.shard.map(|s| ShardId {
+            index: s.index,
+            count: s.count,
+        }),
+        made_by: made_by(),
+    };
+    let mut writer = Writer::open(&dir, info).map_err(catalogue_error)?;
+    let pending: std::collections::BTreeSet<u32> = writer.pending_units().into_iter().collect();
+    let todo: Vec<_> = all_units
+        .into_iter()
+        .filter(|u| pending.contains(&u.index))
+        .collect();
+    let bar = progress::bar(todo.len() as u64, &format!("C{}", spec.atoms), args.quiet);
+    let mut failure = None;
+    let to_record = |f: &Found| -> Result<Record, String> {
+        let d = score::describe_spiral(&f.spiral, args.charge).map_err(|e: ScoreError| e.to_string())?;
+        Record::from_descriptors(&f.spiral, f.ipr, &d)
+    };
+    enumerate::run_units_mapped(spec, &todo, args.threads, to_record, |window| {
+        let mut batch: Vec<(u32, Vec<Record>)> = Vec::with_capacity(window.len());
+        for (unit, found) in window {
+            let mut records = Vec::with_capacity(found.len());
+            for (f, r) in found {
+                match r {
+                    Ok(rec) => records.push(rec),
+                    Err(e) => {
+                        failure = Some(CliError::failed(format!("scoring {}: {e}", f.spiral)));
+                        return ControlFlow::Break(());
+                    }
+                }
+            }
+            batch.push((unit, records));
+        }
+        let refs: Vec<(u32, &[Record])> = batch.iter().map(|(u, r)| (*u, r.as_slice())).collect();
+        if let Err(e) = writer.commit_units(&refs) {
+            failure = Some(catalogue_error(e));
+            return ControlFlow::Break(());
+        }
+        bar.inc(batch.len() as u64);
+        ControlFlow::Continue(())
+    })
+    .map_err(|e| CliError::failed(e.to_string()))?;
+    bar.finish_and_clear();
+    if let Some(e) = failure {
+        return Err(e);
+    }
+    let done = writer.finish().map_err(catalogue_error)?;
+    let line = if args.json {
+        json!({"atoms": spec.atoms, "ipr": spec.ipr, "isomers": done.records,
+               "catalogue": done.path.display().to_string()})
+        .to_string()
+    } else {
+        format!(
+            "C{}: {} {} written to {}",
+            spec.atoms,
+            done.records,
+            if spec.ipr { "IPR isomers" } else { "isomers" },
+            done.path.display()
+        )
+    };
+    write_line(out, &line)
+}
+
+fn catalogue_error(e: catalogue::CatalogueError) -> CliError {
+    if e.is_data_error() {
+        CliError::usage(e.to_string())
+    } else {
+        CliError::failed(e.to_string())
+    }
+}
+
+fn isomer_line(args: &Args, atoms: u64, iso: &Isomer, d: Descriptors) -> String {
     if args.json {
-        return json!({
-            "atoms": atoms,
-            "ipr": args.ipr,
-            "number": iso.number,
-            "ipr_number": iso.ipr_number,
-            "spiral": iso.spiral.pentagon_indices(),
-            "automorphisms": iso.automorphisms,
-        })
-        .to_string();
+        let mut v = serde_json::to_value(Scored::new(&iso.spiral, iso.number, iso.ipr_number, d))
+            .unwrap_or_default();
+        if let Some(m) = v.as_object_mut() {
+            m.insert("ipr".into(), json!(args.ipr));
+            m.remove("rank");
+        }
+        return v.to_string();
     }
     let id = match (iso.number, iso.ipr_number) {
         (Some(n), Some(i)) => format!("C{atoms}:{n} (IPR {i})"),
@@ -136,8 +243,11 @@ fn isomer_line(args: &Args, atoms: u64, iso: &Isomer) -> String {
         (None, None) => format!("C{atoms} unit {}", iso.unit),
     };
     format!(
-        "{id:<24} spiral {:<48} symmetries {}",
-        iso.spiral.to_string(),
-        iso.automorphisms
+        "{id:<22} {:<5} Np {:>2}  gap {:>7.4}  {:<15} spiral {}",
+        d.point_group.name(),
+        d.pentagon_adjacencies,
+        d.gap,
+        d.shell.name(),
+        iso.spiral
     )
 }

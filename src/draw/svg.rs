@@ -11,7 +11,7 @@ use std::io::{self, Write};
 /// Drawing area in SVG user units (the legend and captions sit below it).
 const SIZE: f64 = 640.0;
 const MARGIN: f64 = 40.0;
-const CAPTION_HEIGHT: f64 = 120.0;
+const CAPTION_HEIGHT: f64 = 135.0;
 
 /// What a colour encodes.
 #[derive(Debug, Clone, PartialEq)]
@@ -238,7 +238,7 @@ fn write_captions(w: &mut impl Write, p: &Picture<'_>) -> io::Result<()> {
         writeln!(
             w,
             r#"<text x="16" y="{:.1}">{}</text>"#,
-            y0 + 62.0 + 13.0 * i as f64,
+            y0 + 76.0 + 13.0 * i as f64,
             escape(line)
         )?;
     }
