@@ -6,7 +6,11 @@ use criterion::{criterion_group, criterion_main, Criterion};
 fn bench(c: &mut Criterion) {
     let mut g = c.benchmark_group("enumerate");
     g.sample_size(10);
-    for (atoms, ipr, label) in [(60, false, "all C60"), (80, false, "all C80"), (120, true, "IPR C120")] {
+    for (atoms, ipr, label) in [
+        (60, false, "all C60"),
+        (80, false, "all C80"),
+        (120, true, "IPR C120"),
+    ] {
         let spec = Spec::fullerene(atoms, ipr).expect("valid size");
         for threads in [1, 2] {
             g.bench_function(format!("{label}, {threads} thread(s)"), |b| {

@@ -820,12 +820,15 @@ pub fn spiral_from(cage: &Cage, start: Start) -> Option<Spiral> {
     }
 }
 
+/// The best sequence so far, its first start, and the face orders of every start giving it.
+type Best = (Vec<u8>, Start, Vec<(Start, Vec<u32>)>);
+
 /// The canonical (lexicographically smallest) spiral of a cage with its automorphisms, or
 /// `None` if no start completes (cages without any face spiral exist from 380 atoms on).
 pub fn canonical_spiral(cage: &Cage) -> Option<Canonical> {
     let dual = Dual::from_cage(cage);
     let mut reader = Reader::default();
-    let mut best: Option<(Vec<u8>, Start, Vec<(Start, Vec<u32>)>)> = None;
+    let mut best: Option<Best> = None;
     let mut sizes: Vec<u8> = dual.size.clone();
     sizes.sort_unstable();
     sizes.dedup();

@@ -36,7 +36,10 @@ fn json_isomer_line_for_c60_ih() {
     assert_eq!(v["number"], 1812);
     assert_eq!(v["ipr_number"], 1);
     assert_eq!(v["automorphisms"], 120);
-    assert_eq!(v["spiral"], serde_json::json!([1, 7, 9, 11, 13, 15, 18, 20, 22, 24, 26, 32]));
+    assert_eq!(
+        v["spiral"],
+        serde_json::json!([1, 7, 9, 11, 13, 15, 18, 20, 22, 24, 26, 32])
+    );
 }
 
 #[test]

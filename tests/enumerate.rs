@@ -86,7 +86,10 @@ fn c60_ih_is_last_of_1812_and_first_ipr() {
     let last = list.last().unwrap();
     assert_eq!(last.number, Some(1812));
     assert_eq!(last.ipr_number, Some(1));
-    assert_eq!(last.spiral.pentagon_indices(), vec![1, 7, 9, 11, 13, 15, 18, 20, 22, 24, 26, 32]);
+    assert_eq!(
+        last.spiral.pentagon_indices(),
+        vec![1, 7, 9, 11, 13, 15, 18, 20, 22, 24, 26, 32]
+    );
     assert_eq!(last.automorphisms, 120);
     assert_eq!(list.iter().filter(|i| i.ipr).count(), 1);
 }
@@ -98,7 +101,10 @@ fn c70_d5h_is_last_of_8149() {
     let last = list.last().unwrap();
     assert_eq!(last.number, Some(8149));
     assert_eq!(last.automorphisms, 20);
-    assert_eq!(last.spiral.pentagon_indices(), vec![1, 7, 9, 11, 13, 15, 27, 29, 31, 33, 35, 37]);
+    assert_eq!(
+        last.spiral.pentagon_indices(),
+        vec![1, 7, 9, 11, 13, 15, 27, 29, 31, 33, 35, 37]
+    );
 }
 
 fn graph(c: &Cage) -> UnGraph<(), ()> {
@@ -165,11 +171,17 @@ fn all_starts_search_finds_nothing_more_up_to_44() {
 
 #[test]
 fn shards_partition_the_run() {
-    let single: Vec<_> = all(48, false, 0, None).into_iter().map(|i| i.spiral).collect();
+    let single: Vec<_> = all(48, false, 0, None)
+        .into_iter()
+        .map(|i| i.spiral)
+        .collect();
     for parts in [2u32, 3, 7] {
         let mut union = Vec::new();
         for k in 1..=parts {
-            let shard = Shard { index: k, count: parts };
+            let shard = Shard {
+                index: k,
+                count: parts,
+            };
             let got = all(48, false, 0, Some(shard));
             assert!(got.iter().all(|i| i.number.is_none()));
             union.extend(got.into_iter().map(|i| i.spiral));

@@ -88,7 +88,10 @@ fn write_xyz(structures: &[(String, Coords)]) -> Vec<u8> {
     out
 }
 
-fn write_sdf(structures: &[(String, Coords, Vec<([u32; 2], u8)>)]) -> Vec<u8> {
+/// (title, coordinates, bonds with orders) for each record of a multi-record SDF.
+type SdfRecord = (String, Coords, Vec<([u32; 2], u8)>);
+
+fn write_sdf(structures: &[SdfRecord]) -> Vec<u8> {
     let mut out = Vec::new();
     for (name, coords, bonds) in structures {
         let record = export::sdf::Record {

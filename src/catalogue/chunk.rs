@@ -329,8 +329,11 @@ fn check_codes(flags: &[u8], groups: &[u8]) -> Result<(), String> {
     Ok(())
 }
 
+/// Decoded spirals: every (position, size) entry, and where each record's entries start.
+type Unfronted = (Vec<(u32, u8)>, Vec<usize>);
+
 /// Undoes the spiral front coding, checking positions increase and fit the face count.
-fn unfront(c: &Columns, atoms: u32) -> Result<(Vec<(u32, u8)>, Vec<usize>), String> {
+fn unfront(c: &Columns, atoms: u32) -> Result<Unfronted, String> {
     let n = c.count as usize;
     check_len("spiral_shared", c.spiral_shared.len(), n)?;
     check_len("spiral_new", c.spiral_new.len(), n)?;

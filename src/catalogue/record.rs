@@ -257,7 +257,7 @@ impl Record {
 pub fn normalise_nmr(pattern: &[(u32, u32)]) -> Vec<(u32, u32)> {
     let mut out: Vec<(u32, u32)> = Vec::new();
     let mut sorted: Vec<(u32, u32)> = pattern.iter().copied().filter(|&(_, n)| n > 0).collect();
-    sorted.sort_by(|a, b| b.0.cmp(&a.0));
+    sorted.sort_by_key(|b| std::cmp::Reverse(b.0));
     for (m, n) in sorted {
         match out.last_mut() {
             Some(last) if last.0 == m => last.1 += n,

@@ -9,7 +9,7 @@ use cagerank::enumerate::{self, Found, Isomer, Options, Shard, Spec};
 use cagerank::score::{self, huckel, Descriptors, ScoreError, Scored};
 use serde_json::json;
 use std::ops::ControlFlow;
-use std::path::PathBuf;
+use std::path::{Path, PathBuf};
 
 #[derive(clap::Args, Debug)]
 pub struct Args {
@@ -103,7 +103,8 @@ fn run_size(out: &mut Out, args: &Args, atoms: u64) -> Result<(), CliError> {
     let bar = progress::bar(0, &format!("C{atoms}"), args.quiet);
     let mut count = 0u64;
     let mut failure = None;
-    let score = |f: &Found| (!args.count_only).then(|| score::describe_spiral(&f.spiral, args.charge));
+    let score =
+        |f: &Found| (!args.count_only).then(|| score::describe_spiral(&f.spiral, args.charge));
     enumerate::enumerate_mapped(
         &spec,
         &opts,
@@ -142,11 +143,11 @@ fn run_size(out: &mut Out, args: &Args, atoms: u64) -> Result<(), CliError> {
 
 /// Enumerates the units the catalogue still lacks, scores them and commits them window by
 /// window; a killed run resumes from the last committed window.
-fn write_catalogue(out: &mut Out, args: &Args, spec: &Spec, dir: &PathBuf) -> Result<(), CliError> {
+fn write_catalogue(out: &mut Out, args: &Args, spec: &Spec, dir: &Path) -> Result<(), CliError> {
     let dir = if dir.as_os_str().is_empty() {
         catalogue::default_dir()
     } else {
-        dir.clone()
+        dir.to_path_buf()
     };
     let all_units = enumerate::units(spec);
     let info = RunInfo {
@@ -170,7 +171,8 @@ fn write_catalogue(out: &mut Out, args: &Args, spec: &Spec, dir: &PathBuf) -> Re
     let bar = progress::bar(todo.len() as u64, &format!("C{}", spec.atoms), args.quiet);
     let mut failure = None;
     let to_record = |f: &Found| -> Result<Record, String> {
-        let d = score::describe_spiral(&f.spiral, args.charge).map_err(|e: ScoreError| e.to_string())?;
+        let d = score::describe_spiral(&f.spiral, args.charge)
+            .map_err(|e: ScoreError| e.to_string())?;
         Record::from_descriptors(&f.spiral, f.ipr, &d)
     };
     enumerate::run_units_mapped(spec, &todo, args.threads, to_record, |window| {

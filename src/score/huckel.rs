@@ -8,8 +8,9 @@
 
 use crate::cage::Cage;
 use crate::score::Shell;
-use faer::linalg::solvers::SelfAdjointEigen;
-use faer::{Mat, Side};
+use faer::dyn_stack::{MemBuffer, MemStack};
+use faer::linalg::evd::{self, ComputeEigenvectors};
+use faer::{Mat, Par};
 use std::fmt;
 
 /// Two eigenvalues closer than this (in |beta|) belong to one degenerate level, and an eigenvalue
@@ -108,9 +109,7 @@ fn adjacency(cage: &Cage) -> Mat<f64> {
 
 /// The Hückel spectrum, sorted descending (values only: the fast path).
 pub fn eigenvalues(cage: &Cage) -> Vec<f64> {
-    let mut values = adjacency(cage)
-        .self_adjoint_eigenvalues(Side::Lower)
-        .expect("invariant: the symmetric eigensolver converges on a 0/1 adjacency matrix");
+    let (mut values, _) = solve(cage, ComputeEigenvectors::No);
     values.reverse();
     values
 }
@@ -119,16 +118,35 @@ pub fn eigenvalues(cage: &Cage) -> Vec<f64> {
 /// `values[k]`. Used for Coulson bond orders and topological coordinates.
 pub fn eigen_decomposition(cage: &Cage) -> (Vec<f64>, Vec<Vec<f64>>) {
     let n = cage.atoms();
-    let evd: SelfAdjointEigen<f64> = adjacency(cage)
-        .self_adjoint_eigen(Side::Lower)
-        .expect("invariant: the symmetric eigensolver converges on a 0/1 adjacency matrix");
-    let (s, u) = (evd.S(), evd.U());
-    let values = (0..n).rev().map(|k| s[k]).collect();
+    let (mut values, u) = solve(cage, ComputeEigenvectors::Yes);
+    values.reverse();
+    let u = u.expect("invariant: eigenvectors were requested");
     let vectors = (0..n)
         .rev()
-        .map(|k| (0..n).map(|i| u[(i, k)]).collect())
+        .map(|k| u.col(k).iter().copied().collect())
         .collect();
     (values, vectors)
+}
+
+/// faer's self-adjoint eigensolver on the adjacency matrix, run sequentially: callers score many
+/// cages in parallel, so nested threading would only add overhead. Values ascending.
+fn solve(cage: &Cage, want: ComputeEigenvectors) -> (Vec<f64>, Option<Mat<f64>>) {
+    let n = cage.atoms();
+    let a = adjacency(cage);
+    let mut s = faer::diag::Diag::<f64>::zeros(n);
+    let mut u = (want == ComputeEigenvectors::Yes).then(|| Mat::<f64>::zeros(n, n));
+    let scratch = evd::self_adjoint_evd_scratch::<f64>(n, want, Par::Seq, Default::default());
+    let mut buffer = MemBuffer::new(scratch);
+    evd::self_adjoint_evd(
+        a.as_ref(),
+        s.as_mut(),
+        u.as_mut().map(|u| u.as_mut()),
+        Par::Seq,
+        MemStack::new(&mut buffer),
+        Default::default(),
+    )
+    .expect("invariant: the symmetric eigensolver converges on a 0/1 adjacency matrix");
+    (s.column_vector().iter().copied().collect(), u)
 }
 
 /// HOMO, LUMO, gap, shell type and pi energy per atom of the cage ion with `charge`, from the
