@@ -27,13 +27,16 @@ fn spread(values: &[f64]) -> (f64, f64) {
     (lo, hi)
 }
 
+/// (edge index, length in Å) pairs.
+type BondList = Vec<(usize, f64)>;
+
 #[test]
 fn c60_matches_gas_phase_electron_diffraction() {
     let cage = c60();
     let g = geometry::relax(&cage).unwrap();
     assert!(g.converged, "{g:?}");
     let lengths = bond_lengths(&cage, &g.coords);
-    let (hex_hex, hex_pent): (Vec<(usize, f64)>, Vec<(usize, f64)>) = lengths
+    let (hex_hex, hex_pent): (BondList, BondList) = lengths
         .iter()
         .copied()
         .enumerate()
