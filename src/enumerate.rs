@@ -471,34 +471,32 @@ pub fn find_by_number(spec: &Spec, number: u64) -> Option<Isomer> {
 }
 
 /// Complete-list and IPR-list numbers of a canonical fullerene spiral (by enumerating its size;
-/// the complete list of C100 takes about a minute). `(None, None)` if the spiral is not canonical
-/// or not a fullerene.
+/// the complete list of C70 takes about half a minute, C100 far longer). `(None, None)` if the
+/// spiral is not canonical or not a fullerene.
 pub fn numbers_of(spiral: &Spiral) -> (Option<u64>, Option<u64>) {
-    let Ok(spec) = Spec::fullerene(spiral.atoms() as u64, false) else {
-        return (None, None);
-    };
-    let find = |spec: &Spec| {
-        let mut hit = None;
-        let _ = enumerate_until(
-            spec,
-            &Options::default(),
-            |_, _| {},
-            |iso| {
-                if iso.spiral == *spiral {
-                    hit = Some(iso);
-                    ControlFlow::Break(())
-                } else if iso.spiral > *spiral {
-                    ControlFlow::Break(())
-                } else {
-                    ControlFlow::Continue(())
-                }
-            },
-        );
-        hit
-    };
-    let complete = find(&spec).and_then(|i| i.number);
-    let ipr = find(&Spec { ipr: true, ..spec }).and_then(|i| i.ipr_number);
-    (complete, ipr)
+    (list_number_of(spiral, false), list_number_of(spiral, true))
+}
+
+/// Position of a canonical spiral in the complete list (`ipr` false) or the IPR list of its size.
+pub fn list_number_of(spiral: &Spiral, ipr: bool) -> Option<u64> {
+    let spec = Spec::fullerene(spiral.atoms() as u64, ipr).ok()?;
+    let mut hit = None;
+    let _ = enumerate_until(
+        &spec,
+        &Options::default(),
+        |_, _| {},
+        |iso| {
+            if iso.spiral == *spiral {
+                hit = if ipr { iso.ipr_number } else { iso.number };
+                ControlFlow::Break(())
+            } else if iso.spiral > *spiral {
+                ControlFlow::Break(())
+            } else {
+                ControlFlow::Continue(())
+            }
+        },
+    );
+    hit
 }
 
 #[cfg(test)]

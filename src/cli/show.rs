@@ -121,9 +121,27 @@ fn from_spiral(atoms: u64, list: &str, args: &Args) -> Result<Located, CliError>
     let (number, ipr_number) = if args.no_numbers {
         (None, None)
     } else {
-        enumerate::numbers_of(&canonical)
+        (
+            complete_number(&canonical, atoms),
+            enumerate::list_number_of(&canonical, true),
+        )
     };
     Ok((canonical, number, ipr_number))
+}
+
+/// Largest size whose complete list `show` enumerates to find a number (C70 takes about half a
+/// minute); beyond it the complete-list number is left out and a note says how to get it.
+const COMPLETE_LIST_LIMIT: u64 = 70;
+
+fn complete_number(spiral: &Spiral, atoms: u64) -> Option<u64> {
+    if atoms > COMPLETE_LIST_LIMIT {
+        eprintln!(
+            "cagerank: note: the complete-list number of a C{atoms} isomer needs the whole list; \
+             run `cagerank enumerate {atoms} --catalogue` and `cagerank query --atoms {atoms}`"
+        );
+        return None;
+    }
+    enumerate::list_number_of(spiral, false)
 }
 
 /// Finds isomer `number` of the complete (or IPR) list of C`atoms` by enumeration.
@@ -142,7 +160,7 @@ fn from_number(atoms: u64, number: u64, args: &Args) -> Result<Located, CliError
     })?;
     let number = match isomer.number {
         Some(n) => Some(n),
-        None if !args.no_numbers => enumerate::numbers_of(&isomer.spiral).0,
+        None if !args.no_numbers => complete_number(&isomer.spiral, atoms),
         None => None,
     };
     Ok((isomer.spiral, number, isomer.ipr_number))
