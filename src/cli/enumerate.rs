@@ -38,9 +38,8 @@ pub struct Args {
     /// Also search sequences starting on a larger face (slow): a completeness check.
     #[arg(long)]
     pub all_starts: bool,
-    /// Cage charge for the Hückel descriptors, e.g. -6 for a cage holding a trimetallic nitride.
-    #[arg(long, default_value_t = 0, allow_hyphen_values = true)]
-    pub charge: i32,
+    #[command(flatten)]
+    pub charge: super::ChargeArg,
     /// Write scored isomers into this catalogue directory (resumable: run the same command again
     /// after an interruption). Default directory: $CAGERANK_CATALOGUE or ./catalogues.
     #[arg(long, value_name = "DIR", num_args = 0..=1, default_missing_value = "")]
@@ -90,7 +89,7 @@ fn count_line(args: &Args, atoms: u64, count: u64) -> String {
 fn run_size(out: &mut Out, args: &Args, atoms: u64) -> Result<(), CliError> {
     let spec = spec_for(args, atoms)?;
     if !args.count_only {
-        huckel::filled_orbitals(atoms as usize, args.charge)
+        huckel::filled_orbitals(atoms as usize, args.charge.charge)
             .map_err(|e| CliError::usage(e.to_string()))?;
     }
     if let Some(dir) = &args.catalogue {
@@ -103,8 +102,9 @@ fn run_size(out: &mut Out, args: &Args, atoms: u64) -> Result<(), CliError> {
     let bar = progress::bar(0, &format!("C{atoms}"), args.quiet);
     let mut count = 0u64;
     let mut failure = None;
-    let score =
-        |f: &Found| (!args.count_only).then(|| score::describe_spiral(&f.spiral, args.charge));
+    let score = |f: &Found| {
+        (!args.count_only).then(|| score::describe_spiral(&f.spiral, args.charge.charge))
+    };
     enumerate::enumerate_mapped(
         &spec,
         &opts,
@@ -171,7 +171,7 @@ fn write_catalogue(out: &mut Out, args: &Args, spec: &Spec, dir: &Path) -> Resul
     let bar = progress::bar(todo.len() as u64, &format!("C{}", spec.atoms), args.quiet);
     let mut failure = None;
     let to_record = |f: &Found| -> Result<Record, String> {
-        let d = score::describe_spiral(&f.spiral, args.charge)
+        let d = score::describe_spiral(&f.spiral, args.charge.charge)
             .map_err(|e: ScoreError| e.to_string())?;
         Record::from_descriptors(&f.spiral, f.ipr, &d)
     };

@@ -32,14 +32,8 @@ pub struct Args {
     /// Export these isomers, e.g. C84:22,C84:23 (numbers in the IPR list with --ipr).
     #[arg(long, value_name = "IDS")]
     pub ids: Option<String>,
-    /// Cage charge Q used for the descriptors (e.g. -6).
-    #[arg(
-        long,
-        default_value_t = 0,
-        allow_hyphen_values = true,
-        value_name = "Q"
-    )]
-    pub charge: i32,
+    #[command(flatten)]
+    pub charge: super::ChargeArg,
     /// Comma-separated formats: xyz, sdf, json.
     #[arg(long, default_value = "xyz,sdf,json", value_name = "LIST")]
     pub format: String,
@@ -58,7 +52,7 @@ pub fn run(args: Args) -> Result<(), CliError> {
         .map_err(|e| CliError::failed(format!("cannot create {}: {e}", args.out.display())))?;
     let mut entries: Vec<Entry> = Vec::with_capacity(picks.len());
     for (id, spiral, numbers) in &picks {
-        let entry = export::prepare(id, spiral, *numbers, args.charge)
+        let entry = export::prepare(id, spiral, *numbers, args.charge.charge)
             .map_err(|e| CliError::failed(e.to_string()))?;
         if !entry.geometry.converged {
             eprintln!(

@@ -38,14 +38,8 @@ pub struct Args {
     /// Catalogue directory to read isomer numbers from (needed for large cages).
     #[arg(long, value_name = "DIR")]
     pub catalogue: Option<PathBuf>,
-    /// Cage charge Q for the Hückel descriptors (e.g. -6 for Sc3N@C80).
-    #[arg(
-        long,
-        default_value_t = 0,
-        allow_hyphen_values = true,
-        value_name = "Q"
-    )]
-    pub charge: i32,
+    #[command(flatten)]
+    pub charge: super::ChargeArg,
     /// Added to the sum of covalent radii (Å) when deciding whether two atoms are bonded.
     #[arg(long, default_value_t = identify::perceive::DEFAULT_TOLERANCE, value_name = "ANGSTROM")]
     pub tolerance: f64,
@@ -194,7 +188,7 @@ fn report(out: &mut Out, label: &Label, id: &Identity, args: &Args) -> Result<()
             .map_err(|e| CliError::failed(e.to_string()))?,
         )
     };
-    let d = score::describe(&id.cage, canonical, args.charge)
+    let d = score::describe(&id.cage, canonical, args.charge.charge)
         .map_err(|e| CliError::usage(e.to_string()))?;
     if args.json {
         let mut m = label.json();
@@ -213,7 +207,7 @@ fn report(out: &mut Out, label: &Label, id: &Identity, args: &Args) -> Result<()
             json!(score::spiral_numbers(&canonical.spiral)),
         );
         m.insert("ipr".into(), json!(id.cage.is_ipr()));
-        m.insert("charge".into(), json!(args.charge));
+        m.insert("charge".into(), json!(args.charge.charge));
         if let Value::Object(fields) = serde_json::to_value(&d)
             .map_err(|e| CliError::failed(format!("cannot encode JSON: {e}")))?
         {
@@ -231,7 +225,7 @@ fn report(out: &mut Out, label: &Label, id: &Identity, args: &Args) -> Result<()
         &canonical.spiral.to_string(),
         numbers,
         &d,
-        args.charge,
+        args.charge.charge,
     );
     for line in lines {
         write_line(out, &line)?;
@@ -354,7 +348,7 @@ fn report_spiralless(
     args: &Args,
 ) -> Result<(), CliError> {
     let cage = &id.cage;
-    let hmo = huckel::summarize(&huckel::eigenvalues(cage), args.charge)
+    let hmo = huckel::summarize(&huckel::eigenvalues(cage), args.charge.charge)
         .map_err(|e| CliError::usage(e.to_string()))?;
     let kekule = kekule::kekule_count(cage).to_string();
     let note = "no face spiral: this cage has no canonical spiral, so it has no isomer number \
@@ -387,7 +381,7 @@ fn report_spiralless(
         ),
         format!(
             "  Hückel (charge {:+})     HOMO {:.4}, LUMO {:.4}, gap {:.4} |beta|, {}",
-            args.charge,
+            args.charge.charge,
             hmo.homo,
             hmo.lumo,
             hmo.gap,

@@ -49,6 +49,20 @@ impl fmt::Display for CliError {
     }
 }
 
+/// The cage-charge option shared by every command that computes Hückel descriptors.
+#[derive(clap::Args, Debug, Clone, Copy)]
+pub struct ChargeArg {
+    /// Cage charge Q (e.g. -6 for a cage holding a trimetallic nitride); fills n/2 - Q/2
+    /// orbitals and reports the gap of that ion.
+    #[arg(
+        long,
+        default_value_t = 0,
+        allow_hyphen_values = true,
+        value_name = "Q"
+    )]
+    pub charge: i32,
+}
+
 #[derive(Parser, Debug)]
 #[command(
     name = "cagerank",

@@ -29,14 +29,8 @@ pub struct Args {
     /// The 12 pentagon positions of a spiral of this size, comma-separated (e.g. 1,7,9,...).
     #[arg(long, value_name = "INDICES")]
     pub spiral: Option<String>,
-    /// Cage charge Q (e.g. -6 for a cage holding a trimetallic nitride); fills n/2 - Q/2 orbitals.
-    #[arg(
-        long,
-        default_value_t = 0,
-        allow_hyphen_values = true,
-        value_name = "Q"
-    )]
-    pub charge: i32,
+    #[command(flatten)]
+    pub charge: super::ChargeArg,
     /// One JSON object with every descriptor and the per-bond and per-ring arrays.
     #[arg(long)]
     pub json: bool,
@@ -60,11 +54,12 @@ pub fn run(args: Args) -> Result<(), CliError> {
             )))
         }
     };
-    let record =
-        score::full_record(&spiral, number, ipr_number, args.charge).map_err(|e| match e {
+    let record = score::full_record(&spiral, number, ipr_number, args.charge.charge).map_err(
+        |e| match e {
             ScoreError::Charge(_) => CliError::usage(e.to_string()),
             _ => CliError::failed(e.to_string()),
-        })?;
+        },
+    )?;
     let mut out = Out::stdout();
     if args.json {
         let text = serde_json::to_string(&record)
@@ -72,7 +67,7 @@ pub fn run(args: Args) -> Result<(), CliError> {
         write_line(&mut out, &text)?;
         eprintln!("{CAUTION}");
     } else {
-        for line in text_block(&record, &spiral, args.charge) {
+        for line in text_block(&record, &spiral, args.charge.charge) {
             write_line(&mut out, &line)?;
         }
         write_line(&mut out, CAUTION)?;
