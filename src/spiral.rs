@@ -248,8 +248,13 @@ pub fn check_fullerene_atoms(atoms: u64) -> Result<(), SpiralError> {
 #[derive(Debug, Clone, Copy)]
 struct Frame {
     triangles: u32,
-    boundary_at: u32,
-    boundary_len: u16,
+    /// Boundary head before the push.
+    head: u32,
+    /// Faces closed off the back of the boundary, in the order they were removed.
+    popped: [u32; MAX_FACE],
+    n_popped: u8,
+    /// Whether the new face was appended to the boundary.
+    pushed: bool,
     connected: [u32; MAX_FACE],
     n_connected: u8,
 }
@@ -269,7 +274,6 @@ pub(crate) struct Winder {
     head: usize,
     triangles: Vec<[u32; 3]>,
     frames: Vec<Frame>,
-    saved: Vec<u32>,
 }
 
 impl Winder {
@@ -283,7 +287,6 @@ impl Winder {
             head: 0,
             triangles: Vec::with_capacity(2 * total_faces),
             frames: Vec::with_capacity(total_faces),
-            saved: Vec::new(),
         }
     }
 
@@ -314,25 +317,25 @@ impl Winder {
         if !(3..=MAX_FACE as u8).contains(&size) || k >= self.total {
             return Err(WindError::BadSize { position: k, size });
         }
-        let active = &self.boundary[self.head..];
         let frame = Frame {
             triangles: self.triangles.len() as u32,
-            boundary_at: self.saved.len() as u32,
-            boundary_len: active.len() as u16,
+            head: self.head as u32,
+            popped: [0; MAX_FACE],
+            n_popped: 0,
+            pushed: false,
             connected: [0; MAX_FACE],
             n_connected: 0,
         };
-        self.saved.extend_from_slice(active);
         self.frames.push(frame);
         self.sizes.push(size);
         self.valency.push(size);
         let result = if k == 0 {
             self.boundary.clear();
             self.head = 0;
-            self.boundary.push(0);
+            self.append(0);
             Ok(())
         } else if k == 1 {
-            self.connect(1, 0).map(|()| self.boundary.push(1))
+            self.connect(1, 0).map(|()| self.append(1))
         } else if k + 1 < self.total {
             self.attach_middle(k)
         } else {
@@ -353,12 +356,22 @@ impl Winder {
         self.sizes.pop();
         self.valency.pop();
         self.triangles.truncate(frame.triangles as usize);
-        let at = frame.boundary_at as usize;
-        let len = frame.boundary_len as usize;
-        self.boundary.clear();
-        self.boundary.extend_from_slice(&self.saved[at..at + len]);
-        self.head = 0;
-        self.saved.truncate(at);
+        if frame.pushed {
+            self.boundary.pop();
+        }
+        for &f in frame.popped[..frame.n_popped as usize].iter().rev() {
+            self.boundary.push(f);
+        }
+        self.head = frame.head as usize;
+    }
+
+    /// Appends the newest face to the boundary, recording it for undo.
+    fn append(&mut self, face: u32) {
+        self.boundary.push(face);
+        self.frames
+            .last_mut()
+            .expect("append runs inside push")
+            .pushed = true;
     }
 
     /// Joins the newest face `k` to face `other`, recording it for undo.
@@ -411,7 +424,10 @@ impl Winder {
                 if self.boundary.len() - self.head <= 2 {
                     return Err(WindError::ClosedEarly { position: k });
                 }
-                self.boundary.pop();
+                let gone = self.boundary.pop().expect("boundary has faces");
+                let frame = self.frames.last_mut().expect("attach runs inside push");
+                frame.popped[frame.n_popped as usize] = gone;
+                frame.n_popped += 1;
                 let next = *self.boundary.last().expect("boundary has faces");
                 self.connect(kk, next)?;
                 self.triangles.push([kk, last, next]);
@@ -423,7 +439,7 @@ impl Winder {
         if self.valency[k] == 0 {
             return Err(WindError::ClosedEarly { position: k });
         }
-        self.boundary.push(kk);
+        self.append(kk);
         Ok(())
     }
 
