@@ -589,8 +589,8 @@ impl Dual {
         &self.nbr[x as usize][..self.size[x as usize] as usize]
     }
 
-    /// Every start whose first face has size at most `max_first`, grouped by increasing first
-    /// face size so a caller can stop after the first size that completes.
+    /// Every start (first face, second face, sense) whose first face has exactly `size`
+    /// edges; callers try sizes in increasing order and stop after the first that completes.
     fn starts_of_size(&self, size: u8) -> impl Iterator<Item = Start> + '_ {
         (0..self.faces() as u32)
             .filter(move |&f| self.size[f as usize] == size)
