@@ -5,6 +5,7 @@
 //! line) per structure. The science lives in the library.
 
 use super::output::{write_line, Out};
+use super::show::{nmr_text, symmetry_text};
 use super::CliError;
 use cagerank::cage::Cage;
 use cagerank::identify::numbers::{self, Number, Numbers};
@@ -280,12 +281,7 @@ fn text_block(
         ),
         format!("  canonical spiral      {spiral}"),
         cage_line(&id.cage, id.ignored),
-        format!(
-            "  symmetry              {}, {} automorphisms, {}",
-            d.point_group,
-            d.automorphisms,
-            if d.chiral { "chiral" } else { "achiral" }
-        ),
+        format!("  symmetry              {}", symmetry_text(d)),
         format!("  13C NMR pattern       {}", nmr_text(&d.nmr)),
         format!(
             "  pentagon adjacencies  {} ({})",
@@ -329,15 +325,6 @@ fn cage_line(cage: &Cage, ignored: usize) -> String {
         counts[5],
         counts[6]
     )
-}
-
-fn nmr_text(nmr: &[(u32, u32)]) -> String {
-    let lines: u32 = nmr.iter().map(|&(_, count)| count).sum();
-    let parts: Vec<String> = nmr
-        .iter()
-        .map(|&(size, count)| format!("{count} of intensity {size}"))
-        .collect();
-    format!("{lines} lines: {}", parts.join(", "))
 }
 
 /// A closed fullerene with no face spiral: what can be known without one.

@@ -6,7 +6,7 @@
 use super::output::{write_line, Out};
 use super::CliError;
 use cagerank::enumerate::{self, Spec};
-use cagerank::score::{self, FullRecord, ScoreError};
+use cagerank::score::{self, Descriptors, FullRecord, ScoreError};
 use cagerank::spiral::{canonical_spiral, Spiral};
 
 /// Shown with every ranking-related output (text after the block, stderr with `--json`).
@@ -192,12 +192,7 @@ fn text_block(r: &FullRecord, spiral: &Spiral, charge: i32) -> Vec<String> {
             r.faces.len(),
             r.faces.iter().filter(|f| f.len() == 5).count(),
         ),
-        format!(
-            "symmetry              {}, {} automorphisms, {}",
-            d.point_group,
-            d.automorphisms,
-            if d.chiral { "chiral" } else { "achiral" }
-        ),
+        format!("symmetry              {}", symmetry_text(d)),
         format!("13C NMR pattern       {}", nmr_text(&d.nmr)),
         format!(
             "pentagon adjacencies  {} (penalty estimate {:.0} kJ/mol at 90 per adjacency)",
@@ -218,7 +213,17 @@ fn text_block(r: &FullRecord, spiral: &Spiral, charge: i32) -> Vec<String> {
     ]
 }
 
-fn nmr_text(nmr: &[(u32, u32)]) -> String {
+/// "D5h, 20 automorphisms, achiral" (shared with `identify`).
+pub(super) fn symmetry_text(d: &Descriptors) -> String {
+    let chirality = if d.chiral { "chiral" } else { "achiral" };
+    format!(
+        "{}, {} automorphisms, {chirality}",
+        d.point_group, d.automorphisms
+    )
+}
+
+/// "11 lines: 10 of intensity 8, 1 of intensity 4" (shared with `identify`).
+pub(super) fn nmr_text(nmr: &[(u32, u32)]) -> String {
     let lines: u32 = nmr.iter().map(|&(_, count)| count).sum();
     let parts: Vec<String> = nmr
         .iter()
