@@ -474,14 +474,18 @@ pub fn find_by_number(spec: &Spec, number: u64) -> Option<Isomer> {
 /// the complete list of C70 takes about half a minute, C100 far longer). `(None, None)` if the
 /// spiral is not canonical or not a fullerene.
 pub fn numbers_of(spiral: &Spiral) -> (Option<u64>, Option<u64>) {
-    (list_number_of(spiral, false), list_number_of(spiral, true))
+    let number = |ipr| list_number_of(spiral, ipr).ok().flatten();
+    (number(false), number(true))
 }
 
-/// Position of a canonical spiral in the complete list (`ipr` false) or the IPR list of its size.
-pub fn list_number_of(spiral: &Spiral, ipr: bool) -> Option<u64> {
-    let spec = Spec::fullerene(spiral.atoms() as u64, ipr).ok()?;
+/// Position of a canonical spiral in the complete list (`ipr` false) or the IPR list of its size;
+/// `Ok(None)` if it is not on that list (or not a fullerene spiral).
+pub fn list_number_of(spiral: &Spiral, ipr: bool) -> Result<Option<u64>, EnumerateError> {
+    let Ok(spec) = Spec::fullerene(spiral.atoms() as u64, ipr) else {
+        return Ok(None);
+    };
     let mut hit = None;
-    let _ = enumerate_until(
+    enumerate_until(
         &spec,
         &Options::default(),
         |_, _| {},
@@ -495,8 +499,8 @@ pub fn list_number_of(spiral: &Spiral, ipr: bool) -> Option<u64> {
                 ControlFlow::Continue(())
             }
         },
-    );
-    hit
+    )?;
+    Ok(hit)
 }
 
 #[cfg(test)]

@@ -118,7 +118,7 @@ fn from_spiral(atoms: u64, list: &str, args: &Args) -> Result<Located, CliError>
     } else {
         (
             complete_number(&canonical, atoms),
-            enumerate::list_number_of(&canonical, true),
+            enumerate::list_number_of(&canonical, true).ok().flatten(),
         )
     };
     Ok((canonical, number, ipr_number))
@@ -136,7 +136,7 @@ fn complete_number(spiral: &Spiral, atoms: u64) -> Option<u64> {
         );
         return None;
     }
-    enumerate::list_number_of(spiral, false)
+    enumerate::list_number_of(spiral, false).ok().flatten()
 }
 
 /// Finds isomer `number` of the complete (or IPR) list of C`atoms` by enumeration.

@@ -10,9 +10,8 @@
 use crate::cage::FaceSet;
 use crate::catalogue::record::special_faces_of;
 use crate::catalogue::{data_file_name, CatalogueError, DataFile};
-use crate::enumerate::{enumerate_until, EnumerateError, Options, Spec};
+use crate::enumerate::{list_number_of, EnumerateError};
 use crate::spiral::Spiral;
-use std::ops::ControlFlow;
 use std::path::Path;
 
 /// Largest cage whose complete-list number is found by enumeration. C84 has 51592 (OEIS A007894)
@@ -127,27 +126,7 @@ fn by_enumeration_for(
 /// Position of `spiral` in the complete or IPR list of its size, stopping as soon as the list
 /// passes it (lists come in increasing spiral order).
 pub fn position_in_list(spiral: &Spiral, ipr: bool) -> Result<Number, EnumerateError> {
-    let Ok(spec) = Spec::fullerene(spiral.atoms() as u64, ipr) else {
-        return Ok(Number::NotListed);
-    };
-    let mut hit = Number::NotListed;
-    enumerate_until(
-        &spec,
-        &Options::default(),
-        |_, _| {},
-        |iso| {
-            if iso.spiral == *spiral {
-                let n = if ipr { iso.ipr_number } else { iso.number };
-                hit = n.map_or(Number::NotListed, Number::Listed);
-                ControlFlow::Break(())
-            } else if iso.spiral > *spiral {
-                ControlFlow::Break(())
-            } else {
-                ControlFlow::Continue(())
-            }
-        },
-    )?;
-    Ok(hit)
+    Ok(list_number_of(spiral, ipr)?.map_or(Number::NotListed, Number::Listed))
 }
 
 /// Numbers read from the catalogue in `dir`: the complete-list file of the size gives both
