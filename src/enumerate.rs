@@ -21,10 +21,15 @@
 
 use crate::cage::FaceSet;
 use crate::spiral::{
-    check_fullerene_atoms, test_canonical, Canonicity, Dual, Reader, Spiral, SpiralError, Winder,
+    check_fullerene_atoms, test_canonical, Canonicity, Dual, Reader, RotationScratch, Spiral,
+    SpiralError, Winder,
 };
 use rayon::prelude::*;
+use std::cell::RefCell;
+use std::collections::HashMap;
 use std::fmt;
+use std::hash::{BuildHasherDefault, Hasher};
+use std::ops::Range;
 use std::ops::ControlFlow;
 use std::str::FromStr;
 
@@ -187,12 +192,90 @@ impl Budget {
     }
 }
 
+/// Completions are remembered for prefixes with at most this many faces to go (codes hold two
+/// bits a face in a `u32`).
+const MEMO_DEPTH: usize = 14;
+
+/// Bounds on one thread's memo (about 60 MB at most); it is emptied when either is reached.
+const MEMO_MAX_BOUNDARIES: usize = 1 << 20;
+const MEMO_MAX_CODES: usize = 1 << 22;
+
+thread_local! {
+    /// One memo per worker thread, kept across the units it runs (boundaries recur between
+    /// units).
+    static MEMO: RefCell<Memo> = RefCell::new(Memo::default());
+}
+
+/// Completions of the end of the search by open boundary (see [`Search::solve`]).
+#[derive(Default)]
+struct Memo {
+    spec: Option<Spec>,
+    /// Boundary key → range of `codes`.
+    map: HashMap<u128, (u32, u32), BuildHasherDefault<KeyHasher>>,
+    codes: Vec<u32>,
+    /// Completion codes of the prefixes being searched.
+    stack: Vec<u32>,
+}
+
+impl Memo {
+    /// Empties the memo if it was filled for another run.
+    fn prepare(&mut self, spec: &Spec) {
+        if self.spec != Some(*spec) {
+            self.map.clear();
+            self.codes.clear();
+            self.spec = Some(*spec);
+        }
+        self.stack.clear();
+    }
+
+    /// Stores `stack[from..]` as the completions of boundary `key`.
+    fn remember(&mut self, key: u128, from: usize) {
+        let new = self.stack.len() - from;
+        if self.map.len() >= MEMO_MAX_BOUNDARIES || self.codes.len() + new > MEMO_MAX_CODES {
+            self.map.clear();
+            self.codes.clear();
+        }
+        if new > MEMO_MAX_CODES {
+            return;
+        }
+        let start = self.codes.len() as u32;
+        self.codes.extend_from_slice(&self.stack[from..]);
+        self.map.insert(key, (start, self.codes.len() as u32));
+    }
+}
+
+/// Multiply-fold hash for boundary keys: the keys are already dense bit patterns, so a
+/// DoS-resistant hasher would only cost time.
+#[derive(Default)]
+struct KeyHasher(u64);
+
+impl Hasher for KeyHasher {
+    fn finish(&self) -> u64 {
+        self.0
+    }
+
+    fn write(&mut self, bytes: &[u8]) {
+        for &b in bytes {
+            self.0 = (self.0.rotate_left(8) ^ u64::from(b)).wrapping_mul(0x9E37_79B9_7F4A_7C15);
+        }
+    }
+
+    fn write_u128(&mut self, k: u128) {
+        let folded = (k as u64) ^ ((k >> 64) as u64).rotate_left(29);
+        self.0 = (folded ^ self.0).wrapping_mul(0x9E37_79B9_7F4A_7C15);
+        self.0 ^= self.0 >> 32;
+    }
+}
+
 /// Depth-first spiral search below a prefix.
 struct Search<'a> {
     spec: &'a Spec,
     budget: Budget,
     winder: Winder,
     reader: Reader,
+    /// Scratch for the dual of each completed sequence.
+    dual: Dual,
+    rotation_scratch: RotationScratch,
     total: usize,
 }
 
@@ -204,6 +287,8 @@ impl<'a> Search<'a> {
             budget: Budget::new(spec.face_set, total),
             winder: Winder::new(total, spec.ipr),
             reader: Reader::default(),
+            dual: Dual::from_triangles(&[], &[]),
+            rotation_scratch: RotationScratch::default(),
             total,
         }
     }
@@ -266,25 +351,101 @@ impl<'a> Search<'a> {
         }
     }
 
-    /// Visits every canonical sequence below the current prefix.
-    fn descend(&mut self, used: u32, out: &mut Vec<Found>) {
-        if self.winder.is_complete() {
-            self.leaf(out);
+    /// Visits every canonical sequence below the current prefix. Near the end of the sequence
+    /// the search is handed to [`Search::solve`], which shares work between equal boundaries.
+    fn descend(&mut self, used: u32, out: &mut Vec<Found>, memo: &mut Memo) {
+        if self.total - self.winder.sizes().len() <= MEMO_DEPTH {
+            let mark = memo.stack.len();
+            self.solve(used, out, memo);
+            memo.stack.truncate(mark);
             return;
         }
         for &s in self.spec.face_set.sizes() {
             if self.allowed(s) && self.try_push(s, used) {
-                self.descend(used + 6 - s as u32, out);
+                self.descend(used + 6 - s as u32, out, memo);
                 self.winder.pop();
             }
         }
     }
 
+    /// Runs every completion of the current prefix through [`Search::leaf`] and appends to
+    /// `memo.stack` a code for each (the remaining faces, two bits each, first face lowest), in
+    /// search order.
+    ///
+    /// Which completions exist depends only on the open boundary (its free valencies, and for
+    /// IPR which faces are pentagons), the faces left and the curvature left, not on how the
+    /// boundary was reached; most prefixes near the end of the sequence share a boundary with an
+    /// earlier one (about four nodes per distinct boundary for C60), so completions found once
+    /// are replayed instead of searched again. Replaying winds the same faces in the same order,
+    /// so the output does not depend on what the memo holds.
+    fn solve(&mut self, used: u32, out: &mut Vec<Found>, memo: &mut Memo) {
+        let r = self.total - self.winder.sizes().len();
+        if r == 0 {
+            self.leaf(out);
+            memo.stack.push(0);
+            return;
+        }
+        let left = 12 - used;
+        let first = self.winder.sizes().first().map_or(0, |&f| f as u32);
+        let header = (r as u32) << 12 | left << 8 | first << 1 | u32::from(self.spec.all_starts);
+        let key = self.winder.boundary_key(header, self.spec.ipr);
+        if let Some(&(from, to)) = key.and_then(|k| memo.map.get(&k)) {
+            self.replay(r, from as usize..to as usize, out, memo);
+            return;
+        }
+        let mark = memo.stack.len();
+        for (i, &s) in self.spec.face_set.sizes().iter().enumerate() {
+            if self.allowed(s) && self.try_push(s, used) {
+                let child = memo.stack.len();
+                self.solve(used + 6 - s as u32, out, memo);
+                for code in &mut memo.stack[child..] {
+                    *code = *code << 2 | i as u32;
+                }
+                self.winder.pop();
+            }
+        }
+        if let Some(k) = key {
+            memo.remember(k, mark);
+        }
+    }
+
+    /// Winds the memo's completions `range` (each `r` faces) onto the current prefix, visiting
+    /// each leaf; consecutive completions share their first faces, which are kept wound.
+    fn replay(&mut self, r: usize, range: Range<usize>, out: &mut Vec<Found>, memo: &mut Memo) {
+        let sizes = self.spec.face_set.sizes();
+        let mut wound = 0;
+        let mut previous = 0u32;
+        for j in range {
+            let code = memo.codes[j];
+            let keep = if wound == 0 {
+                0
+            } else {
+                (((previous ^ code).trailing_zeros() / 2) as usize).min(r)
+            };
+            for _ in keep..wound {
+                self.winder.pop();
+            }
+            for i in keep..r {
+                let s = sizes[(code >> (2 * i) & 3) as usize];
+                let wound_again = self.winder.push(s);
+                debug_assert!(wound_again.is_ok(), "a remembered completion winds again");
+            }
+            wound = r;
+            previous = code;
+            self.leaf(out);
+            memo.stack.push(code);
+        }
+        for _ in 0..wound {
+            self.winder.pop();
+        }
+    }
+
     fn leaf(&mut self, out: &mut Vec<Found>) {
         let sizes = self.winder.sizes();
-        let dual = Dual::from_triangles(sizes, self.winder.triangles());
+        self.dual
+            .rebuild(sizes, self.winder.triangles(), &mut self.rotation_scratch);
         if let Canonicity::Canonical { automorphisms } =
-            test_canonical(&dual, sizes, &mut self.reader)
+            test_canonical(&self.dual, sizes, &mut self.reader)
         {
             let ipr = self.spec.ipr || !has_adjacent_pentagons(sizes, self.winder.triangles());
             out.push(Found {
@@ -337,7 +498,10 @@ pub fn run_unit(spec: &Spec, unit: &Unit) -> Vec<Found> {
         used += 6 - s as u32;
     }
     let mut out = Vec::new();
-    search.descend(used, &mut out);
+    MEMO.with_borrow_mut(|memo| {
+        memo.prepare(spec);
+        search.descend(used, &mut out, memo);
+    });
     out
 }
 

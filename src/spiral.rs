@@ -298,10 +298,6 @@ impl Winder {
         &self.triangles
     }
 
-    pub(crate) fn is_complete(&self) -> bool {
-        self.sizes.len() == self.total
-    }
-
     /// Sum of the free valencies of the open boundary faces (the length of the patch's
     /// boundary circuit in the primal graph).
     pub(crate) fn open_valency(&self) -> u32 {
@@ -309,6 +305,31 @@ impl Winder {
             .iter()
             .map(|&f| self.valency[f as usize] as u32)
             .sum()
+    }
+
+    /// Packs everything the rest of the winding depends on — the free valency of each open
+    /// boundary face from the head on, and with `pentagon_flags` which of them are pentagons —
+    /// after `header` (at most 18 bits). `None` if it does not fit in 128 bits.
+    pub(crate) fn boundary_key(&self, header: u32, pentagon_flags: bool) -> Option<u128> {
+        let open = &self.boundary[self.head..];
+        let width = 3 + u32::from(pentagon_flags);
+        if open.len() as u32 * width > 104 {
+            return None;
+        }
+        let mut key = u128::from(header) << 6 | open.len() as u128;
+        for &f in open {
+            // Open faces keep between one and eight free edges: valency - 1 fits in three bits.
+            let v = self.valency[f as usize];
+            if !(1..=8).contains(&v) {
+                return None;
+            }
+            let mut bits = u128::from(v - 1);
+            if pentagon_flags {
+                bits = bits << 1 | u128::from(self.sizes[f as usize] == 5);
+            }
+            key = key << width | bits;
+        }
+        Some(key)
     }
 
     /// Adds the next face; on error the state is left as before the call.
@@ -530,6 +551,13 @@ pub struct Start {
     pub sense: Sense,
 }
 
+/// Reusable buffers for [`Dual::rebuild`].
+#[derive(Debug, Default)]
+pub(crate) struct RotationScratch {
+    succ: Vec<[(u32, u32); MAX_FACE]>,
+    filled: Vec<u8>,
+}
+
 /// The dual triangulation in a compact form for fast spiral reading.
 #[derive(Debug, Clone)]
 pub(crate) struct Dual {
@@ -552,21 +580,44 @@ impl Dual {
 
     /// From wound triangles: in triangle (a, b, c), c follows b around a.
     pub(crate) fn from_triangles(sizes: &[u8], triangles: &[[u32; 3]]) -> Dual {
+        let mut dual = Dual {
+            size: Vec::new(),
+            nbr: Vec::new(),
+        };
+        dual.rebuild(sizes, triangles, &mut RotationScratch::default());
+        dual
+    }
+
+    /// As [`Dual::from_triangles`], reusing this dual's buffers and `scratch` (the enumerator
+    /// calls this once per completed sequence).
+    pub(crate) fn rebuild(
+        &mut self,
+        sizes: &[u8],
+        triangles: &[[u32; 3]],
+        scratch: &mut RotationScratch,
+    ) {
         let f = sizes.len();
-        let mut succ = vec![[(u32::MAX, u32::MAX); MAX_FACE]; f];
-        let mut count = vec![0usize; f];
+        // succ[x] lists pairs (y, z): z follows y around x.
+        let RotationScratch { succ, filled } = scratch;
+        succ.resize(f, [(u32::MAX, 0); MAX_FACE]);
+        filled.clear();
+        filled.resize(f, 0);
+        self.size.clear();
+        self.size.extend_from_slice(sizes);
         for &[a, b, c] in triangles {
             for (x, y, z) in [(a, b, c), (b, c, a), (c, a, b)] {
-                succ[x as usize][count[x as usize]] = (y, z);
-                count[x as usize] += 1;
+                let k = &mut filled[x as usize];
+                succ[x as usize][*k as usize] = (y, z);
+                *k += 1;
             }
         }
-        let mut nbr = vec![[u32::MAX; MAX_FACE]; f];
+        self.nbr.clear();
+        self.nbr.resize(f, [u32::MAX; MAX_FACE]);
         for x in 0..f {
             let d = sizes[x] as usize;
             let pairs = &succ[x][..d];
             let mut cur = pairs[0].0;
-            for slot in nbr[x].iter_mut().take(d) {
+            for slot in self.nbr[x].iter_mut().take(d) {
                 *slot = cur;
                 cur = pairs
                     .iter()
@@ -574,10 +625,6 @@ impl Dual {
                     .expect("rotation closes around every face")
                     .1;
             }
-        }
-        Dual {
-            size: sizes.to_vec(),
-            nbr,
         }
     }
 
@@ -622,56 +669,44 @@ pub(crate) enum Outcome {
 /// Scratch space for reading spirals; reused across starts to avoid allocation.
 #[derive(Debug, Default)]
 pub(crate) struct Reader {
-    epoch: u32,
-    visited: Vec<u32>,
-    rem_epoch: Vec<u32>,
+    visited: Vec<bool>,
+    /// Neighbours of each face not yet visited.
     rem: Vec<u8>,
     boundary: Vec<u32>,
     pub(crate) order: Vec<u32>,
+    /// Starts sorted by their first ring, for [`test_canonical`].
+    smaller: Vec<Start>,
+    equal: Vec<Start>,
 }
 
 impl Reader {
-    fn reset(&mut self, faces: usize) {
-        if self.visited.len() < faces {
-            self.visited = vec![0; faces];
-            self.rem_epoch = vec![0; faces];
-            self.rem = vec![0; faces];
-            self.epoch = 0;
-        }
-        self.epoch = self.epoch.wrapping_add(1);
-        if self.epoch == 0 {
-            self.visited.iter_mut().for_each(|v| *v = 0);
-            self.rem_epoch.iter_mut().for_each(|v| *v = 0);
-            self.epoch = 1;
-        }
+    /// Plain arrays reset per read: a cage has at most a few hundred faces, and indexing them
+    /// directly is cheaper than tagging entries with a read counter.
+    fn reset(&mut self, dual: &Dual) {
+        self.visited.clear();
+        self.visited.resize(dual.faces(), false);
+        self.rem.clear();
+        self.rem.extend_from_slice(&dual.size);
         self.boundary.clear();
         self.order.clear();
     }
 
     fn visited(&self, x: u32) -> bool {
-        self.visited[x as usize] == self.epoch
+        self.visited[x as usize]
     }
 
-    fn rem(&self, dual: &Dual, x: u32) -> u8 {
-        if self.rem_epoch[x as usize] == self.epoch {
-            self.rem[x as usize]
-        } else {
-            dual.size[x as usize]
-        }
+    fn rem(&self, x: u32) -> u8 {
+        self.rem[x as usize]
     }
 
     /// Marks `x` visited; returns how many of its neighbours were already visited.
     fn visit(&mut self, dual: &Dual, x: u32) -> usize {
-        self.visited[x as usize] = self.epoch;
+        self.visited[x as usize] = true;
         self.order.push(x);
         let mut seen = 0;
         for &y in dual.neighbours(x) {
-            let r = self.rem(dual, y) - 1;
-            self.rem[y as usize] = r;
-            self.rem_epoch[y as usize] = self.epoch;
-            if self.visited(y) {
-                seen += 1;
-            }
+            self.rem[y as usize] -= 1;
+            seen += usize::from(self.visited[y as usize]);
         }
         seen
     }
@@ -684,7 +719,7 @@ impl Reader {
     /// in `self.order`).
     pub(crate) fn read(&mut self, dual: &Dual, start: Start, reference: Option<&[u8]>) -> Outcome {
         let f = dual.faces();
-        self.reset(f);
+        self.reset(dual);
         let mut state = Ordering::Equal;
         let (a, b) = (start.first.0, start.second.0);
         let Some(pos) = dual.neighbours(a).iter().position(|&x| x == b) else {
@@ -737,10 +772,10 @@ impl Reader {
             let mut joins = 2;
             loop {
                 let open_now = self.boundary.len() - head;
-                if open_now > 2 && self.rem(dual, self.boundary[head]) == 0 {
+                if open_now > 2 && self.rem(self.boundary[head]) == 0 {
                     head += 1;
                     joins += 1;
-                } else if open_now > 2 && self.rem(dual, *self.boundary.last().expect("open")) == 0
+                } else if open_now > 2 && self.rem(*self.boundary.last().expect("open")) == 0
                 {
                     self.boundary.pop();
                     joins += 1;
@@ -748,7 +783,7 @@ impl Reader {
                     break;
                 }
             }
-            if joins != seen || self.rem(dual, next) == 0 {
+            if joins != seen || self.rem(next) == 0 {
                 return Outcome::Jam;
             }
             self.boundary.push(next);
@@ -787,17 +822,77 @@ pub(crate) enum Canonicity {
 /// Tests whether `sizes` (which wound into `dual`) is the canonical spiral of its cage, trying
 /// only starts whose first face is no larger than the sequence's first face.
 pub(crate) fn test_canonical(dual: &Dual, sizes: &[u8], reader: &mut Reader) -> Canonicity {
-    let mut automorphisms = 0;
-    let mut first_sizes: Vec<u8> = dual.size.clone();
-    first_sizes.sort_unstable();
-    first_sizes.dedup();
-    for &s in first_sizes.iter().filter(|&&s| s <= sizes[0]) {
-        for start in dual.starts_of_size(s) {
-            match reader.read(dual, start, Some(sizes)) {
-                Outcome::Smaller => return Canonicity::NotCanonical,
-                Outcome::Equal => automorphisms += 1,
-                Outcome::Larger | Outcome::Jam => {}
+    // A spiral's first terms are its first face and that face's ring of neighbours, so most
+    // starts are settled without reading: a larger ring can only give a larger spiral. Starts
+    // with a smaller ring are read first because they usually disqualify the sequence at once
+    // (unless their spiral jams); starts with an equal ring decide the rest.
+    let mut smaller = std::mem::take(&mut reader.smaller);
+    let mut equal = std::mem::take(&mut reader.equal);
+    smaller.clear();
+    equal.clear();
+    let verdict = test_starts(dual, sizes, reader, &mut smaller, &mut equal);
+    reader.smaller = smaller;
+    reader.equal = equal;
+    verdict
+}
+
+fn test_starts(
+    dual: &Dual,
+    sizes: &[u8],
+    reader: &mut Reader,
+    smaller: &mut Vec<Start>,
+    equal: &mut Vec<Start>,
+) -> Canonicity {
+    for f in 0..dual.faces() as u32 {
+        let d = dual.size[f as usize] as usize;
+        if d as u8 > sizes[0] {
+            continue;
+        }
+        let ring = dual.neighbours(f);
+        // The ring's sizes twice over, forwards and backwards, so that the ring read from any
+        // neighbour in either sense is one contiguous slice.
+        let mut forward = [0u8; 2 * MAX_FACE];
+        let mut backward = [0u8; 2 * MAX_FACE];
+        for (i, &g) in ring.iter().enumerate() {
+            let s = dual.size[g as usize];
+            forward[i] = s;
+            forward[i + d] = s;
+            backward[d - 1 - i] = s;
+            backward[2 * d - 1 - i] = s;
+        }
+        // A cage has more faces than any face has neighbours; `n` only guards the slice.
+        let n = d.min(sizes.len() - 1);
+        let want = &sizes[1..=n];
+        for (pos, &g) in ring.iter().enumerate() {
+            for (sense, terms) in [
+                (Sense::Anticlockwise, &forward[pos..pos + n]),
+                (Sense::Clockwise, &backward[d - 1 - pos..d - 1 - pos + n]),
+            ] {
+                let order = (d as u8).cmp(&sizes[0]).then_with(|| terms.cmp(want));
+                let start = Start {
+                    first: FaceId(f),
+                    second: FaceId(g),
+                    sense,
+                };
+                match order {
+                    Ordering::Less => smaller.push(start),
+                    Ordering::Equal => equal.push(start),
+                    Ordering::Greater => {}
+                }
             }
+        }
+    }
+    for &start in smaller.iter() {
+        if reader.read(dual, start, Some(sizes)) == Outcome::Smaller {
+            return Canonicity::NotCanonical;
+        }
+    }
+    let mut automorphisms = 0;
+    for &start in equal.iter() {
+        match reader.read(dual, start, Some(sizes)) {
+            Outcome::Smaller => return Canonicity::NotCanonical,
+            Outcome::Equal => automorphisms += 1,
+            Outcome::Larger | Outcome::Jam => {}
         }
     }
     Canonicity::Canonical { automorphisms }
