@@ -29,8 +29,8 @@ use std::cell::RefCell;
 use std::collections::HashMap;
 use std::fmt;
 use std::hash::{BuildHasherDefault, Hasher};
-use std::ops::Range;
 use std::ops::ControlFlow;
+use std::ops::Range;
 use std::str::FromStr;
 
 /// Smallest atom count from which some fullerenes have no face spiral at all (T-C380;

@@ -775,8 +775,7 @@ impl Reader {
                 if open_now > 2 && self.rem(self.boundary[head]) == 0 {
                     head += 1;
                     joins += 1;
-                } else if open_now > 2 && self.rem(*self.boundary.last().expect("open")) == 0
-                {
+                } else if open_now > 2 && self.rem(*self.boundary.last().expect("open")) == 0 {
                     self.boundary.pop();
                     joins += 1;
                 } else {
