@@ -215,6 +215,12 @@ struct Memo {
     codes: Vec<u32>,
     /// Completion codes of the prefixes being searched.
     stack: Vec<u32>,
+    /// Boundaries are looked up with at most this many faces to go; lowered while running
+    /// when lookups at the deepest level rarely hit (IPR boundaries seldom repeat).
+    depth: usize,
+    /// Lookups and hits per number of faces to go.
+    lookups: [u32; MEMO_DEPTH + 1],
+    hits: [u32; MEMO_DEPTH + 1],
 }
 
 impl Memo {
@@ -224,8 +230,22 @@ impl Memo {
             self.map.clear();
             self.codes.clear();
             self.spec = Some(*spec);
+            self.depth = MEMO_DEPTH;
+            self.lookups = [0; MEMO_DEPTH + 1];
+            self.hits = [0; MEMO_DEPTH + 1];
         }
         self.stack.clear();
+    }
+
+    /// Counts a lookup with `r` faces to go; every 4096 lookups at the deepest level, gives
+    /// that level up if fewer than one in five hit, as storing misses then costs more than the
+    /// hits save.
+    fn count(&mut self, r: usize, hit: bool) {
+        self.lookups[r] += 1;
+        self.hits[r] += u32::from(hit);
+        if r == self.depth && self.lookups[r] % 4096 == 0 && self.hits[r] * 5 < self.lookups[r] {
+            self.depth -= 1;
+        }
     }
 
     /// Stores `stack[from..]` as the completions of boundary `key`.
@@ -336,25 +356,26 @@ impl<'a> Search<'a> {
         r == 0 || r == self.total as u32 - 1 || self.winder.open_valency() <= 4 * r + 2 - left
     }
 
-    /// Collects every viable prefix of length `depth`.
-    fn prefixes(&mut self, depth: usize, out: &mut Vec<Vec<u8>>) {
-        if self.winder.sizes().len() == depth {
-            out.push(self.winder.sizes().to_vec());
-            return;
-        }
-        let used = self.used_budget();
-        for &s in self.spec.face_set.sizes() {
-            if self.allowed(s) && self.try_push(s, used) {
-                self.prefixes(depth, out);
-                self.winder.pop();
+    /// The viable prefixes one face longer than those of `level`, in spiral order.
+    fn next_level(&mut self, level: &[Winder]) -> Vec<Winder> {
+        let mut next = Vec::new();
+        for w in level {
+            self.winder.clone_from(w);
+            let used = self.used_budget();
+            for &s in self.spec.face_set.sizes() {
+                if self.allowed(s) && self.try_push(s, used) {
+                    next.push(self.winder.clone());
+                    self.winder.pop();
+                }
             }
         }
+        next
     }
 
     /// Visits every canonical sequence below the current prefix. Near the end of the sequence
     /// the search is handed to [`Search::solve`], which shares work between equal boundaries.
     fn descend(&mut self, used: u32, out: &mut Vec<Found>, memo: &mut Memo) {
-        if self.total - self.winder.sizes().len() <= MEMO_DEPTH {
+        if self.total - self.winder.sizes().len() <= memo.depth {
             let mark = memo.stack.len();
             self.solve(used, out, memo);
             memo.stack.truncate(mark);
@@ -388,10 +409,18 @@ impl<'a> Search<'a> {
         let left = 12 - used;
         let first = self.winder.sizes().first().map_or(0, |&f| f as u32);
         let header = (r as u32) << 12 | left << 8 | first << 1 | u32::from(self.spec.all_starts);
-        let key = self.winder.boundary_key(header, self.spec.ipr);
-        if let Some(&(from, to)) = key.and_then(|k| memo.map.get(&k)) {
-            self.replay(r, from as usize..to as usize, out, memo);
-            return;
+        let key = if r <= memo.depth {
+            self.winder.boundary_key(header, self.spec.ipr)
+        } else {
+            None
+        };
+        if let Some(k) = key {
+            let found = memo.map.get(&k).copied();
+            memo.count(r, found.is_some());
+            if let Some((from, to)) = found {
+                self.replay(r, from as usize..to as usize, out, memo);
+                return;
+            }
         }
         let mark = memo.stack.len();
         for (i, &s) in self.spec.face_set.sizes().iter().enumerate() {
@@ -469,20 +498,22 @@ fn has_adjacent_pentagons(sizes: &[u8], triangles: &[[u32; 3]]) -> bool {
 /// [`TARGET_UNITS`] units (or the whole sequence is reached), so the list depends on `spec` only.
 pub fn units(spec: &Spec) -> Vec<Unit> {
     let mut search = Search::new(spec);
-    let mut depth = 2.min(spec.faces());
+    // Level by level, keeping each prefix wound: the top of the tree is searched once, however
+    // deep the cut ends up (IPR trees are narrow, so the cut can be thirty faces down).
+    let mut level = vec![Winder::new(spec.faces(), spec.ipr)];
+    let mut depth = 0;
     loop {
-        let mut prefixes = Vec::new();
-        search.prefixes(depth, &mut prefixes);
-        if prefixes.len() >= TARGET_UNITS || depth >= spec.faces() {
-            return prefixes
-                .into_iter()
+        if depth >= 2.min(spec.faces()) && (level.len() >= TARGET_UNITS || depth >= spec.faces()) {
+            return level
+                .iter()
                 .enumerate()
-                .map(|(i, prefix)| Unit {
+                .map(|(i, w)| Unit {
                     index: i as u32,
-                    prefix,
+                    prefix: w.sizes().to_vec(),
                 })
                 .collect();
         }
+        level = search.next_level(&level);
         depth += 1;
     }
 }
