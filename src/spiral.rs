@@ -835,6 +835,50 @@ pub(crate) fn test_canonical(dual: &Dual, sizes: &[u8], reader: &mut Reader) -> 
     verdict
 }
 
+/// A pentagon's ring of pentagons and hexagons as five bits, first neighbour highest and a
+/// hexagon a one, so that comparing codes compares the rings term by term.
+fn pentagon_ring_code(ring: &[u8]) -> Option<u8> {
+    if ring.len() != 5 {
+        return None;
+    }
+    ring.iter().try_fold(0u8, |code, &s| match s {
+        5 => Some(code << 1),
+        6 => Some(code << 1 | 1),
+        _ => None,
+    })
+}
+
+/// For each pentagon ring code, the smallest code of that ring read from any neighbour in
+/// either sense: a pentagon whose smallest reading exceeds the sequence's own first ring can
+/// be passed over without looking at its ten starts.
+const SMALLEST_PENTAGON_RING: [u8; 32] = {
+    let mut table = [0u8; 32];
+    let mut code = 0;
+    while code < 32 {
+        let mut best = 31u8;
+        let mut pos = 0;
+        while pos < 5 {
+            let (mut anticlockwise, mut clockwise) = (0u8, 0u8);
+            let mut i = 0;
+            while i < 5 {
+                anticlockwise = anticlockwise << 1 | (code >> (4 - (pos + i) % 5)) as u8 & 1;
+                clockwise = clockwise << 1 | (code >> (4 - (pos + 5 - i) % 5)) as u8 & 1;
+                i += 1;
+            }
+            if anticlockwise < best {
+                best = anticlockwise;
+            }
+            if clockwise < best {
+                best = clockwise;
+            }
+            pos += 1;
+        }
+        table[code] = best;
+        code += 1;
+    }
+    table
+};
+
 fn test_starts(
     dual: &Dual,
     sizes: &[u8],
@@ -862,6 +906,15 @@ fn test_starts(
         // A cage has more faces than any face has neighbours; `n` only guards the slice.
         let n = d.min(sizes.len() - 1);
         let want = &sizes[1..=n];
+        if d as u8 == sizes[0] {
+            if let (Some(ring_code), Some(want_code)) =
+                (pentagon_ring_code(&forward[..d]), pentagon_ring_code(want))
+            {
+                if SMALLEST_PENTAGON_RING[ring_code as usize] > want_code {
+                    continue;
+                }
+            }
+        }
         for (pos, &g) in ring.iter().enumerate() {
             for (sense, terms) in [
                 (Sense::Anticlockwise, &forward[pos..pos + n]),
@@ -1134,5 +1187,28 @@ mod tests {
         let canon = canonical_spiral(&c).unwrap();
         // Ih: 120 symmetries (the dodecahedron, a Platonic solid).
         assert_eq!(canon.automorphisms.len(), 120);
+    }
+
+    #[test]
+    fn pentagon_ring_table_is_the_smallest_reading() {
+        // Brute force over the 32 rings of pentagons and hexagons: read each ring from every
+        // neighbour in both senses as face sizes and keep the lexicographically smallest.
+        for code in 0u8..32 {
+            let ring: Vec<u8> = (0..5).map(|j| 5 + (code >> (4 - j) & 1)).collect();
+            let mut readings = Vec::new();
+            for pos in 0..5 {
+                readings.push((0..5).map(|i| ring[(pos + i) % 5]).collect::<Vec<u8>>());
+                readings.push((0..5).map(|i| ring[(pos + 5 - i) % 5]).collect::<Vec<u8>>());
+            }
+            let smallest = readings.into_iter().min().unwrap();
+            assert_eq!(pentagon_ring_code(&ring), Some(code));
+            assert_eq!(
+                Some(SMALLEST_PENTAGON_RING[code as usize]),
+                pentagon_ring_code(&smallest),
+                "ring {ring:?}"
+            );
+        }
+        assert_eq!(pentagon_ring_code(&[5, 6, 6, 6]), None);
+        assert_eq!(pentagon_ring_code(&[5, 6, 7, 6, 6]), None);
     }
 }
