@@ -1,11 +1,18 @@
-//! Per-descriptor cost of the Hückel, Kekulé and Pauling descriptors on C60-Ih and a C100 cage.
+//! Per-descriptor cost of the Hückel, Kekulé and Pauling descriptors on C60-Ih and a C100 cage,
+//! and the cost per isomer on the first 1,000 C100 isomers in spiral order: the scalar
+//! descriptor set, and the Hückel gap + Kekulé count that `scripts/peer-compare.sh` times in
+//! numpy/networkx on the same isomers.
 //!
 //! Run with `cargo bench --bench score`; figures go to docs/performance.md.
 
 use cagerank::cage::Cage;
-use cagerank::score::{bonds, huckel, kekule};
-use cagerank::spiral::Spiral;
-use criterion::{black_box, criterion_group, criterion_main, Criterion};
+use cagerank::enumerate::{self, Spec};
+use cagerank::score::{self, bonds, huckel, kekule};
+use cagerank::spiral::{canonical_spiral, Spiral};
+use criterion::{black_box, criterion_group, criterion_main, Criterion, Throughput};
+
+/// Size of the peer set (the side-by-side comparison).
+const PEER_SET: usize = 1000;
 
 fn cage(atoms: u64, pentagons: &[u64]) -> Cage {
     Spiral::from_pentagon_indices(atoms, pentagons)
@@ -45,6 +52,57 @@ fn c100() -> Cage {
     panic!("no C100 spiral in the benchmark family winds");
 }
 
+/// The first `n` C100 isomers in spiral order (what `cagerank enumerate 100 --json | head -n
+/// 1000` prints), as cages.
+fn first_c100(n: usize) -> Vec<Cage> {
+    let spec = Spec::fullerene(100, false).expect("C100 exists");
+    let mut out = Vec::new();
+    for unit in enumerate::units(&spec) {
+        for found in enumerate::run_unit(&spec, &unit) {
+            out.push(found.spiral.to_cage());
+            if out.len() == n {
+                return out;
+            }
+        }
+    }
+    out
+}
+
+fn bench_peer_set(c: &mut Criterion) {
+    let cages = first_c100(PEER_SET);
+    let canonical: Vec<_> = cages
+        .iter()
+        .map(|c| canonical_spiral(c).expect("enumerated cages have spirals"))
+        .collect();
+    let mut g = c.benchmark_group("first 1000 C100 isomers");
+    g.sample_size(10);
+    g.throughput(Throughput::Elements(cages.len() as u64));
+    g.bench_function("Hückel gap + Kekulé count", |b| {
+        b.iter(|| {
+            for cage in &cages {
+                let values = huckel::eigenvalues(cage);
+                black_box(huckel::summarize(&values, 0).expect("neutral cage"));
+                black_box(kekule::kekule_count(cage));
+            }
+        })
+    });
+    g.bench_function("scalar descriptor set (describe)", |b| {
+        b.iter(|| {
+            for (cage, canon) in cages.iter().zip(&canonical) {
+                black_box(score::describe(cage, canon, 0).expect("scores"));
+            }
+        })
+    });
+    g.bench_function("canonical spiral and automorphisms", |b| {
+        b.iter(|| {
+            for cage in &cages {
+                black_box(canonical_spiral(cage));
+            }
+        })
+    });
+    g.finish();
+}
+
 fn bench(c: &mut Criterion) {
     for (name, cage) in cages() {
         let values = huckel::eigenvalues(&cage);
@@ -76,6 +134,6 @@ fn bench(c: &mut Criterion) {
 criterion_group! {
     name = benches;
     config = Criterion::default().sample_size(30);
-    targets = bench
+    targets = bench, bench_peer_set
 }
 criterion_main!(benches);
