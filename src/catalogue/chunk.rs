@@ -477,36 +477,44 @@ pub struct View<'a> {
 }
 
 impl View<'_> {
+    #[inline]
     pub fn len(&self) -> usize {
         self.len
     }
 
+    #[inline]
     pub fn is_empty(&self) -> bool {
         self.len == 0
     }
 
+    #[inline]
     pub fn ipr(&self, i: usize) -> bool {
         self.flags[i] & 1 != 0
     }
 
+    #[inline]
     pub fn chiral(&self, i: usize) -> bool {
         self.flags[i] & 2 != 0
     }
 
+    #[inline]
     pub fn shell_code(&self, i: usize) -> u8 {
         self.flags[i] >> 2
     }
 
+    #[inline]
     pub fn point_group_code(&self, i: usize) -> u8 {
         self.point_group[i]
     }
 
+    #[inline]
     pub fn pentagon_adjacencies(&self, i: usize) -> u32 {
         self.pentagon_adjacencies[i]
     }
 
     /// Float column `f` (0 penalty, 1 strain, 2 HOMO, 3 LUMO, 4 gap, 5 pi energy) of record `i`,
     /// gathered from its four byte planes.
+    #[inline]
     pub fn float(&self, f: usize, i: usize) -> f32 {
         let n = self.len;
         let p = &self.floats[f * 4 * n..];
@@ -518,16 +526,19 @@ impl View<'_> {
         ]))
     }
 
+    #[inline]
     pub fn automorphisms(&self, i: usize) -> u32 {
         self.automorphisms[i]
     }
 
     /// The Kekulé count as stored: little-endian bytes.
+    #[inline]
     pub fn kekule_bytes(&self, i: usize) -> &[u8] {
         &self.kekule[self.kekule_start[i]..self.kekule_start[i + 1]]
     }
 
     /// The NMR pattern as flat (multiplicity, lines) pairs.
+    #[inline]
     pub fn nmr_pairs(&self, i: usize) -> impl Iterator<Item = (u32, u32)> + Clone + '_ {
         self.nmr[self.nmr_start[i]..self.nmr_start[i + 1]]
             .chunks_exact(2)

@@ -54,9 +54,11 @@ const GAP: usize = 4;
 const PI: usize = 5;
 
 /// One matching record as ranking sees it: the values of the rank keys (others left at zero),
-/// its position in the file (spiral order) and where to find it again.
+/// its position in the file (spiral order) and where to find it again. While scanning, the
+/// Kekulé bytes are borrowed from the chunk (`K = &[u8]`); only rows that are kept own them,
+/// so a scan ranking by Kekulé count does not allocate per record.
 #[derive(Debug, Clone)]
-struct Row {
+struct Row<K = Vec<u8>> {
     position: u64,
     chunk: u32,
     index: u32,
@@ -69,13 +71,19 @@ struct Row {
     pi_energy: f32,
     automorphisms: u32,
     /// Little-endian, without high zero bytes; empty unless ranking by Kekulé count.
-    kekule: Vec<u8>,
+    kekule: K,
 }
 
-impl Row {
+impl<'v> Row<&'v [u8]> {
     /// Reads the fields `keys` use from record `i` of `view` (the view must hold their columns).
-    fn read(view: &View<'_>, i: usize, chunk: usize, position: u64, keys: &[RankKey]) -> Row {
-        let mut row = Row {
+    fn read(
+        view: &'v View<'_>,
+        i: usize,
+        chunk: usize,
+        position: u64,
+        keys: &[RankKey],
+    ) -> Row<&'v [u8]> {
+        let mut row: Row<&'v [u8]> = Row {
             position,
             chunk: chunk as u32,
             index: i as u32,
@@ -87,7 +95,7 @@ impl Row {
             lumo: 0.0,
             pi_energy: 0.0,
             automorphisms: 0,
-            kekule: Vec::new(),
+            kekule: &[],
         };
         for key in keys {
             match key.field {
@@ -106,7 +114,7 @@ impl Row {
                 RankField::Kekule => {
                     let bytes = view.kekule_bytes(i);
                     let len = bytes.iter().rposition(|&b| b != 0).map_or(0, |p| p + 1);
-                    row.kekule = bytes[..len].to_vec();
+                    row.kekule = &bytes[..len];
                 }
                 RankField::Automorphisms => row.automorphisms = view.automorphisms(i),
                 RankField::Spiral => {}
@@ -114,10 +122,39 @@ impl Row {
         }
         row
     }
+
+    fn owned(&self) -> Row {
+        self.with_kekule(self.kekule.to_vec())
+    }
+}
+
+impl<K> Row<K> {
+    fn with_kekule<L>(&self, kekule: L) -> Row<L> {
+        Row {
+            position: self.position,
+            chunk: self.chunk,
+            index: self.index,
+            pentagon_adjacencies: self.pentagon_adjacencies,
+            shell: self.shell,
+            hexagon_strain: self.hexagon_strain,
+            gap: self.gap,
+            homo: self.homo,
+            lumo: self.lumo,
+            pi_energy: self.pi_energy,
+            automorphisms: self.automorphisms,
+            kekule,
+        }
+    }
+}
+
+impl Row {
+    fn borrowed(&self) -> Row<&[u8]> {
+        self.with_kekule(&self.kekule[..])
+    }
 }
 
 /// Stored `f32` values widen exactly to `f64`, so the order is the `f32` order.
-impl RankFields for Row {
+impl<K: AsRef<[u8]>> RankFields for Row<K> {
     fn pentagon_adjacencies(&self) -> u32 {
         self.pentagon_adjacencies
     }
@@ -144,14 +181,14 @@ impl RankFields for Row {
     }
     /// Without high zero bytes, the longer number is larger; equal lengths compare from the
     /// most significant byte.
-    fn cmp_kekule(&self, other: &Row) -> Ordering {
-        self.kekule
-            .len()
-            .cmp(&other.kekule.len())
-            .then_with(|| self.kekule.iter().rev().cmp(other.kekule.iter().rev()))
+    fn cmp_kekule(&self, other: &Row<K>) -> Ordering {
+        let (a, b) = (self.kekule.as_ref(), other.kekule.as_ref());
+        a.len()
+            .cmp(&b.len())
+            .then_with(|| a.iter().rev().cmp(b.iter().rev()))
     }
     /// Within one data file, position is spiral (isomer-number) order.
-    fn cmp_spiral(&self, other: &Row) -> Ordering {
+    fn cmp_spiral(&self, other: &Row<K>) -> Ordering {
         self.position.cmp(&other.position)
     }
 }
@@ -280,7 +317,7 @@ pub fn query(dir: &Path, q: &Query) -> Result<Vec<Record>, CatalogueError> {
             let view = file.scan_chunk(c, needs)?;
             for i in 0..view.len() {
                 if filter.matches_in_view(&view, i) {
-                    kept.offer(|| Row::read(&view, i, c, position + i as u64, keys));
+                    kept.offer(Row::read(&view, i, c, position + i as u64, keys));
                 }
             }
         }
@@ -367,24 +404,23 @@ impl<'k> Kept<'k> {
         }
     }
 
-    /// Keeps the row `make` builds if it beats the worst kept one (or there is room).
-    fn offer(&mut self, make: impl FnOnce() -> Row) {
+    /// Keeps `row` if it beats the worst kept one (or there is room).
+    fn offer(&mut self, row: Row<&[u8]>) {
         let Some(k) = self.top else {
-            self.all.push(make());
+            self.all.push(row.owned());
             return;
-        };
-        if k == 0 {
-            return;
-        }
-        let row = Ranked {
-            row: make(),
-            keys: self.keys,
         };
         if self.heap.len() < k {
-            self.heap.push(row);
+            self.heap.push(Ranked {
+                row: row.owned(),
+                keys: self.keys,
+            });
         } else if let Some(mut worst) = self.heap.peek_mut() {
-            if row < *worst {
-                *worst = row;
+            if rank::compare(&row, &worst.row.borrowed(), self.keys) == Ordering::Less {
+                *worst = Ranked {
+                    row: row.owned(),
+                    keys: self.keys,
+                };
             }
         }
     }
