@@ -16,8 +16,10 @@ const ZSTD_LEVEL: i32 = 12;
 /// Number of `f32` descriptor columns, in this order: penalty, strain, homo, lumo, gap, pi energy.
 const FLOATS: usize = 6;
 
-/// On-disk columns of one chunk (serialized with postcard; integers become varints).
-#[derive(Serialize, Deserialize, Default)]
+/// On-disk columns of one chunk (serialized with postcard; integers become varints). Read back
+/// by [`Layout::parse`], not serde, so that unneeded columns can be skipped.
+#[derive(Serialize, Default)]
+#[cfg_attr(test, derive(Deserialize, Debug, PartialEq))]
 struct Columns {
     count: u32,
     /// bit 0 IPR, bit 1 chiral, bits 2-4 shell code.
@@ -125,9 +127,6 @@ pub fn encode(records: &[Record]) -> Vec<u8> {
     zstd::bulk::compress(&raw, ZSTD_LEVEL).expect("invariant: zstd compresses in-memory bytes")
 }
 
-/// Upper bound on a decompressed chunk, so a damaged length cannot ask for huge memory.
-const MAX_RAW: usize = 1 << 30;
-
 /// A decoded chunk in struct-of-arrays form.
 #[derive(Debug, Clone)]
 pub struct Chunk {
@@ -147,11 +146,404 @@ pub struct Chunk {
     floats: [Vec<f32>; FLOATS],
 }
 
+/// Upper bound on a decompressed chunk, so a damaged length cannot ask for huge memory.
+const MAX_RAW: usize = 1 << 30;
+
+/// Reads the postcard encoding of [`Columns`] by hand. Serde's generic path cost more than
+/// decompression, and a query needs only a few columns: the others are skipped by counting
+/// varint terminators, never materialised. Must stay in step with the derived `Serialize`
+/// (a test compares it with postcard's own decoder).
+struct Cursor<'a> {
+    bytes: &'a [u8],
+    at: usize,
+}
+
+/// `count` LEB128 varints, still encoded.
+#[derive(Clone, Copy)]
+struct Varints<'a> {
+    bytes: &'a [u8],
+    count: usize,
+}
+
+impl<'a> Cursor<'a> {
+    fn varint(&mut self, what: &str, max_bytes: usize) -> Result<u64, String> {
+        let mut value = 0u64;
+        for k in 0..max_bytes {
+            let b = *self
+                .bytes
+                .get(self.at)
+                .ok_or_else(|| format!("column {what} is cut short"))?;
+            self.at += 1;
+            value |= ((b & 0x7F) as u64) << (7 * k);
+            if b & 0x80 == 0 {
+                return Ok(value);
+            }
+        }
+        Err(format!("column {what} holds an overlong varint"))
+    }
+
+    /// A sequence length; every item takes at least one byte, so it cannot exceed what is left.
+    fn len(&mut self, what: &str) -> Result<usize, String> {
+        let n = self.varint(what, 10)?;
+        if n > (self.bytes.len() - self.at) as u64 {
+            return Err(format!(
+                "column {what} claims {n} entries, more than the bytes left"
+            ));
+        }
+        Ok(n as usize)
+    }
+
+    fn bytes(&mut self, what: &str) -> Result<&'a [u8], String> {
+        let n = self.len(what)?;
+        let out = &self.bytes[self.at..self.at + n];
+        self.at += n;
+        Ok(out)
+    }
+
+    fn varints(&mut self, what: &str) -> Result<Varints<'a>, String> {
+        let count = self.len(what)?;
+        let start = self.at;
+        let mut seen = 0usize;
+        // Eight bytes at a time while the column surely goes on: each byte with its high bit
+        // clear ends one varint (skipping is most of the work for columns a query does not read).
+        while let Some(word) = self.bytes.get(self.at..self.at + 8) {
+            let word = u64::from_le_bytes(word.try_into().expect("invariant: 8 bytes"));
+            let ends = (!word & 0x8080_8080_8080_8080).count_ones() as usize;
+            if seen + ends >= count {
+                break;
+            }
+            seen += ends;
+            self.at += 8;
+        }
+        while seen < count {
+            let b = *self
+                .bytes
+                .get(self.at)
+                .ok_or_else(|| format!("column {what} is cut short"))?;
+            seen += (b & 0x80 == 0) as usize;
+            self.at += 1;
+        }
+        Ok(Varints {
+            bytes: &self.bytes[start..self.at],
+            count,
+        })
+    }
+}
+
+impl Varints<'_> {
+    /// Decodes into `out` (cleared first), rejecting values that do not fit a `u32`.
+    fn decode_into(&self, what: &str, out: &mut Vec<u32>) -> Result<(), String> {
+        out.clear();
+        out.reserve(self.count);
+        let b = self.bytes;
+        let mut at = 0;
+        while at < b.len() {
+            if b[at] < 0x80 {
+                out.push(b[at] as u32);
+                at += 1;
+                continue;
+            }
+            let mut value = 0u32;
+            let mut k = 0;
+            loop {
+                let byte = b[at];
+                at += 1;
+                if k == 4 && byte > 0x0F {
+                    return Err(format!("column {what} holds a value beyond u32"));
+                }
+                value |= ((byte & 0x7F) as u32) << (7 * k);
+                k += 1;
+                if byte & 0x80 == 0 {
+                    break;
+                }
+            }
+            out.push(value);
+        }
+        Ok(())
+    }
+
+    fn decode(&self, what: &str) -> Result<Vec<u32>, String> {
+        let mut out = Vec::new();
+        self.decode_into(what, &mut out)?;
+        Ok(out)
+    }
+}
+
+/// Where each column of a decompressed chunk lies; fixed-size columns are length-checked and
+/// shell and point-group codes validated, so every accessor below is in bounds.
+struct Layout<'a> {
+    count: usize,
+    flags: &'a [u8],
+    point_group: &'a [u8],
+    spiral_shared: Varints<'a>,
+    spiral_new: Varints<'a>,
+    spiral_delta: Varints<'a>,
+    spiral_size: &'a [u8],
+    pentagon_adjacencies: Varints<'a>,
+    hexagon_neighbours: Varints<'a>,
+    automorphisms: Varints<'a>,
+    kekule_len: Varints<'a>,
+    kekule: &'a [u8],
+    nmr_len: Varints<'a>,
+    nmr: Varints<'a>,
+    floats: &'a [u8],
+}
+
+impl<'a> Layout<'a> {
+    fn parse(raw: &'a [u8]) -> Result<Layout<'a>, String> {
+        let mut c = Cursor { bytes: raw, at: 0 };
+        let count = c.varint("count", 5)?;
+        let count = u32::try_from(count).map_err(|_| "count beyond u32".to_string())? as usize;
+        let l = Layout {
+            count,
+            flags: c.bytes("flags")?,
+            point_group: c.bytes("point_group")?,
+            spiral_shared: c.varints("spiral_shared")?,
+            spiral_new: c.varints("spiral_new")?,
+            spiral_delta: c.varints("spiral_delta")?,
+            spiral_size: c.bytes("spiral_size")?,
+            pentagon_adjacencies: c.varints("pentagon_adjacencies")?,
+            hexagon_neighbours: c.varints("hexagon_neighbours")?,
+            automorphisms: c.varints("automorphisms")?,
+            kekule_len: c.varints("kekule_len")?,
+            kekule: c.bytes("kekule")?,
+            nmr_len: c.varints("nmr_len")?,
+            nmr: c.varints("nmr")?,
+            floats: c.bytes("floats")?,
+        };
+        if c.at != raw.len() {
+            return Err(format!("{} bytes after the last column", raw.len() - c.at));
+        }
+        let n = l.count;
+        check_len("flags", l.flags.len(), n)?;
+        check_len("point_group", l.point_group.len(), n)?;
+        check_len("spiral_shared", l.spiral_shared.count, n)?;
+        check_len("spiral_new", l.spiral_new.count, n)?;
+        check_len("spiral_size", l.spiral_size.len(), l.spiral_delta.count)?;
+        check_len("pentagon_adjacencies", l.pentagon_adjacencies.count, n)?;
+        check_len("hexagon_neighbours", l.hexagon_neighbours.count, n * 7)?;
+        check_len("automorphisms", l.automorphisms.count, n)?;
+        check_len("kekule_len", l.kekule_len.count, n)?;
+        check_len("nmr_len", l.nmr_len.count, n)?;
+        check_len("floats", l.floats.len(), n * FLOATS * 4)?;
+        check_codes(l.flags, l.point_group)?;
+        Ok(l)
+    }
+}
+
+/// Reusable decompression context and buffers: reading a chunk allocates nothing once warm.
+pub struct Scratch {
+    dctx: zstd::bulk::Decompressor<'static>,
+    raw: Vec<u8>,
+    pentagon_adjacencies: Vec<u32>,
+    automorphisms: Vec<u32>,
+    lens: Vec<u32>,
+    kekule_start: Vec<usize>,
+    nmr: Vec<u32>,
+    nmr_start: Vec<usize>,
+}
+
+impl Default for Scratch {
+    fn default() -> Scratch {
+        Scratch::new()
+    }
+}
+
+impl Scratch {
+    pub fn new() -> Scratch {
+        Scratch {
+            dctx: zstd::bulk::Decompressor::new()
+                .expect("invariant: a zstd context only fails to allocate when memory is out"),
+            raw: Vec::new(),
+            pentagon_adjacencies: Vec::new(),
+            automorphisms: Vec::new(),
+            lens: Vec::new(),
+            kekule_start: Vec::new(),
+            nmr: Vec::new(),
+            nmr_start: Vec::new(),
+        }
+    }
+
+    /// Decompresses into `raw`, sized from the frame header (the writer always records it).
+    fn decompress(&mut self, body: &[u8]) -> Result<(), String> {
+        let size = zstd::zstd_safe::get_frame_content_size(body)
+            .map_err(|_| "zstd: not a zstd frame".to_string())?;
+        match size {
+            Some(n) if n <= MAX_RAW as u64 => {
+                self.raw.clear();
+                self.raw.reserve(n as usize);
+                self.dctx
+                    .decompress_to_buffer(body, &mut self.raw)
+                    .map_err(|e| format!("zstd: {e}"))?;
+                check_len("decompressed bytes", self.raw.len(), n as usize)
+            }
+            Some(n) => Err(format!("zstd: frame claims {n} bytes")),
+            None => {
+                self.raw = self
+                    .dctx
+                    .decompress(body, MAX_RAW)
+                    .map_err(|e| format!("zstd: {e}"))?;
+                Ok(())
+            }
+        }
+    }
+
+    /// Decodes a whole chunk body, checking everything (see [`decode`]).
+    pub fn decode(&mut self, body: &[u8], atoms: u32) -> Result<Chunk, String> {
+        self.decompress(body)?;
+        Chunk::from_layout(&Layout::parse(&self.raw)?, atoms)
+    }
+
+    /// Decodes only the columns a scan needs; the others are length-checked and skipped.
+    pub fn view(&mut self, body: &[u8], needs: Needs) -> Result<View<'_>, String> {
+        self.decompress(body)?;
+        let Scratch {
+            raw,
+            pentagon_adjacencies,
+            automorphisms,
+            lens,
+            kekule_start,
+            nmr,
+            nmr_start,
+            ..
+        } = self;
+        let l = Layout::parse(raw)?;
+        let n = l.count;
+        pentagon_adjacencies.clear();
+        automorphisms.clear();
+        kekule_start.clear();
+        nmr.clear();
+        nmr_start.clear();
+        if needs.pentagon_adjacencies {
+            l.pentagon_adjacencies
+                .decode_into("pentagon_adjacencies", pentagon_adjacencies)?;
+        }
+        if needs.automorphisms {
+            l.automorphisms
+                .decode_into("automorphisms", automorphisms)?;
+        }
+        if needs.kekule {
+            l.kekule_len.decode_into("kekule_len", lens)?;
+            starts_into("kekule", lens, 1, l.kekule.len(), kekule_start)?;
+        }
+        if needs.nmr {
+            l.nmr_len.decode_into("nmr_len", lens)?;
+            l.nmr.decode_into("nmr", nmr)?;
+            starts_into("nmr", lens, 2, nmr.len(), nmr_start)?;
+        }
+        Ok(View {
+            len: n,
+            flags: l.flags,
+            point_group: l.point_group,
+            floats: l.floats,
+            kekule: if needs.kekule { l.kekule } else { &[] },
+            pentagon_adjacencies,
+            automorphisms,
+            kekule_start,
+            nmr,
+            nmr_start,
+        })
+    }
+}
+
 /// Decodes a chunk body; `Err` says what is inconsistent (the caller names file and chunk).
 pub fn decode(body: &[u8], atoms: u32) -> Result<Chunk, String> {
-    let raw = zstd::bulk::decompress(body, MAX_RAW).map_err(|e| format!("zstd: {e}"))?;
-    let c: Columns = postcard::from_bytes(&raw).map_err(|e| format!("postcard: {e}"))?;
-    Chunk::from_columns(c, atoms)
+    Scratch::new().decode(body, atoms)
+}
+
+/// Columns a [`View`] decodes besides flags, point groups and floats (raw bytes, always there).
+#[derive(Debug, Clone, Copy, Default, PartialEq, Eq)]
+pub struct Needs {
+    pub pentagon_adjacencies: bool,
+    pub automorphisms: bool,
+    pub kekule: bool,
+    pub nmr: bool,
+}
+
+/// Some columns of a chunk, read in place for filtering and ranking. Spirals are not decoded
+/// (nor checked): records that are kept are rebuilt from a full [`decode`]. Accessors of
+/// columns not asked for in [`Needs`] panic.
+pub struct View<'a> {
+    len: usize,
+    flags: &'a [u8],
+    point_group: &'a [u8],
+    floats: &'a [u8],
+    kekule: &'a [u8],
+    pentagon_adjacencies: &'a [u32],
+    automorphisms: &'a [u32],
+    kekule_start: &'a [usize],
+    nmr: &'a [u32],
+    nmr_start: &'a [usize],
+}
+
+impl View<'_> {
+    #[inline]
+    pub fn len(&self) -> usize {
+        self.len
+    }
+
+    #[inline]
+    pub fn is_empty(&self) -> bool {
+        self.len == 0
+    }
+
+    #[inline]
+    pub fn ipr(&self, i: usize) -> bool {
+        self.flags[i] & 1 != 0
+    }
+
+    #[inline]
+    pub fn chiral(&self, i: usize) -> bool {
+        self.flags[i] & 2 != 0
+    }
+
+    #[inline]
+    pub fn shell_code(&self, i: usize) -> u8 {
+        self.flags[i] >> 2
+    }
+
+    #[inline]
+    pub fn point_group_code(&self, i: usize) -> u8 {
+        self.point_group[i]
+    }
+
+    #[inline]
+    pub fn pentagon_adjacencies(&self, i: usize) -> u32 {
+        self.pentagon_adjacencies[i]
+    }
+
+    /// Float column `f` (0 penalty, 1 strain, 2 HOMO, 3 LUMO, 4 gap, 5 pi energy) of record `i`,
+    /// gathered from its four byte planes.
+    #[inline]
+    pub fn float(&self, f: usize, i: usize) -> f32 {
+        let n = self.len;
+        let p = &self.floats[f * 4 * n..];
+        f32::from_bits(u32::from_le_bytes([
+            p[i],
+            p[n + i],
+            p[2 * n + i],
+            p[3 * n + i],
+        ]))
+    }
+
+    #[inline]
+    pub fn automorphisms(&self, i: usize) -> u32 {
+        self.automorphisms[i]
+    }
+
+    /// The Kekulé count as stored: little-endian bytes.
+    #[inline]
+    pub fn kekule_bytes(&self, i: usize) -> &[u8] {
+        &self.kekule[self.kekule_start[i]..self.kekule_start[i + 1]]
+    }
+
+    /// The NMR pattern as flat (multiplicity, lines) pairs.
+    #[inline]
+    pub fn nmr_pairs(&self, i: usize) -> impl Iterator<Item = (u32, u32)> + Clone + '_ {
+        self.nmr[self.nmr_start[i]..self.nmr_start[i + 1]]
+            .chunks_exact(2)
+            .map(|p| (p[0], p[1]))
+    }
 }
 
 fn check_len(name: &str, got: usize, want: usize) -> Result<(), String> {
@@ -163,46 +555,58 @@ fn check_len(name: &str, got: usize, want: usize) -> Result<(), String> {
 }
 
 /// Cumulative start offsets from per-record lengths, checked against the flat column length.
-fn starts(name: &str, lens: &[u32], per: usize, flat: usize) -> Result<Vec<usize>, String> {
-    let mut out = Vec::with_capacity(lens.len() + 1);
+fn starts_into(
+    name: &str,
+    lens: &[u32],
+    per: usize,
+    flat: usize,
+    out: &mut Vec<usize>,
+) -> Result<(), String> {
+    out.clear();
+    out.reserve(lens.len() + 1);
     let mut at = 0usize;
     out.push(0);
     for &l in lens {
         at = at.saturating_add(l as usize * per);
         out.push(at);
     }
-    check_len(name, flat, at)?;
+    check_len(name, flat, at)
+}
+
+fn starts(name: &str, lens: &[u32], per: usize, flat: usize) -> Result<Vec<usize>, String> {
+    let mut out = Vec::new();
+    starts_into(name, lens, per, flat, &mut out)?;
     Ok(out)
 }
 
 impl Chunk {
-    fn from_columns(c: Columns, atoms: u32) -> Result<Chunk, String> {
-        let n = c.count as usize;
-        check_len("flags", c.flags.len(), n)?;
-        check_len("point_group", c.point_group.len(), n)?;
-        check_len("pentagon_adjacencies", c.pentagon_adjacencies.len(), n)?;
-        check_len("hexagon_neighbours", c.hexagon_neighbours.len(), n * 7)?;
-        check_len("automorphisms", c.automorphisms.len(), n)?;
-        check_len("floats", c.floats.len(), n * FLOATS * 4)?;
-        check_len("kekule_len", c.kekule_len.len(), n)?;
-        check_len("nmr_len", c.nmr_len.len(), n)?;
-        check_codes(&c.flags, &c.point_group)?;
-        let (faces, face_start) = unfront(&c, atoms)?;
+    fn from_layout(l: &Layout<'_>, atoms: u32) -> Result<Chunk, String> {
+        let n = l.count;
+        let kekule_len = l.kekule_len.decode("kekule_len")?;
+        let nmr_len = l.nmr_len.decode("nmr_len")?;
+        let nmr = l.nmr.decode("nmr")?;
+        let spiral = FrontCoded {
+            shared: &l.spiral_shared.decode("spiral_shared")?,
+            new: &l.spiral_new.decode("spiral_new")?,
+            delta: &l.spiral_delta.decode("spiral_delta")?,
+            size: l.spiral_size,
+        };
+        let (faces, face_start) = unfront(&spiral, n, atoms)?;
         Ok(Chunk {
             atoms,
             len: n,
-            kekule_start: starts("kekule", &c.kekule_len, 1, c.kekule.len())?,
-            nmr_start: starts("nmr", &c.nmr_len, 2, c.nmr.len())?,
-            floats: unshuffle(&c.floats, n),
+            kekule_start: starts("kekule", &kekule_len, 1, l.kekule.len())?,
+            nmr_start: starts("nmr", &nmr_len, 2, nmr.len())?,
+            floats: unshuffle(l.floats, n),
             faces,
             face_start,
-            flags: c.flags,
-            point_group: c.point_group,
-            pentagon_adjacencies: c.pentagon_adjacencies,
-            hexagon_neighbours: c.hexagon_neighbours,
-            automorphisms: c.automorphisms,
-            kekule: c.kekule,
-            nmr: c.nmr,
+            flags: l.flags.to_vec(),
+            point_group: l.point_group.to_vec(),
+            pentagon_adjacencies: l.pentagon_adjacencies.decode("pentagon_adjacencies")?,
+            hexagon_neighbours: l.hexagon_neighbours.decode("hexagon_neighbours")?,
+            automorphisms: l.automorphisms.decode("automorphisms")?,
+            kekule: l.kekule.to_vec(),
+            nmr,
         })
     }
 
@@ -267,7 +671,7 @@ impl Chunk {
     }
 
     /// The NMR pattern as flat (multiplicity, lines) pairs.
-    pub fn nmr_pairs(&self, i: usize) -> impl Iterator<Item = (u32, u32)> + '_ {
+    pub fn nmr_pairs(&self, i: usize) -> impl Iterator<Item = (u32, u32)> + Clone + '_ {
         self.nmr[self.nmr_start[i]..self.nmr_start[i + 1]]
             .chunks_exact(2)
             .map(|p| (p[0], p[1]))
@@ -332,20 +736,24 @@ fn check_codes(flags: &[u8], groups: &[u8]) -> Result<(), String> {
 /// Decoded spirals: every (position, size) entry, and where each record's entries start.
 type Unfronted = (Vec<(u32, u8)>, Vec<usize>);
 
+/// The spiral columns of a chunk, decoded.
+struct FrontCoded<'a> {
+    shared: &'a [u32],
+    new: &'a [u32],
+    delta: &'a [u32],
+    size: &'a [u8],
+}
+
 /// Undoes the spiral front coding, checking positions increase and fit the face count.
-fn unfront(c: &Columns, atoms: u32) -> Result<Unfronted, String> {
-    let n = c.count as usize;
-    check_len("spiral_shared", c.spiral_shared.len(), n)?;
-    check_len("spiral_new", c.spiral_new.len(), n)?;
-    check_len("spiral_size", c.spiral_size.len(), c.spiral_delta.len())?;
+fn unfront(c: &FrontCoded<'_>, n: usize, atoms: u32) -> Result<Unfronted, String> {
     let faces_total = atoms / 2 + 2;
-    let mut faces: Vec<(u32, u8)> = Vec::with_capacity(c.spiral_delta.len() + n * 4);
+    let mut faces: Vec<(u32, u8)> = Vec::with_capacity(c.delta.len() + n * 4);
     let mut start = Vec::with_capacity(n + 1);
     start.push(0usize);
     let mut next_new = 0usize;
     let mut prev = 0..0;
     for i in 0..n {
-        let shared = c.spiral_shared[i] as usize;
+        let shared = c.shared[i] as usize;
         if shared > prev.len() {
             return Err(format!(
                 "record {i}: spiral shares more faces than the previous one has"
@@ -354,25 +762,25 @@ fn unfront(c: &Columns, atoms: u32) -> Result<Unfronted, String> {
         let begin = faces.len();
         faces.extend_from_within(prev.start..prev.start + shared);
         let mut last = faces.last().filter(|_| shared > 0).map_or(0, |f| f.0);
-        let new = c.spiral_new[i] as usize;
+        let new = c.new[i] as usize;
         let end_new = next_new
             .checked_add(new)
-            .filter(|&e| e <= c.spiral_delta.len())
+            .filter(|&e| e <= c.delta.len())
             .ok_or_else(|| format!("record {i}: spiral column too short"))?;
         for k in next_new..end_new {
             let pos = last
-                .checked_add(c.spiral_delta[k])
+                .checked_add(c.delta[k])
                 .filter(|&p| p > last && p <= faces_total);
             let pos =
                 pos.ok_or_else(|| format!("record {i}: spiral position out of order or range"))?;
-            faces.push((pos, c.spiral_size[k]));
+            faces.push((pos, c.size[k]));
             last = pos;
         }
         next_new = end_new;
         prev = begin..faces.len();
         start.push(faces.len());
     }
-    check_len("spiral_delta", c.spiral_delta.len(), next_new)?;
+    check_len("spiral_delta", c.delta.len(), next_new)?;
     Ok((faces, start))
 }
 
@@ -485,6 +893,76 @@ pub(crate) mod tests {
         assert_eq!(back, records);
         assert_eq!(chunk.stats(), ChunkStats::of_records(&records));
         assert_eq!(chunk.stats().ipr, 25);
+    }
+
+    /// Records with values at every varint width, including `u32::MAX`.
+    fn wide_records() -> Vec<Record> {
+        (0..300u32)
+            .map(|seed| {
+                let wide =
+                    [0, 127, 128, 16_383, 16_384, 1 << 21, 1 << 28, u32::MAX][seed as usize % 8];
+                Record {
+                    pentagon_adjacencies: wide,
+                    automorphisms: wide ^ seed,
+                    hexagon_neighbours: [wide, seed, 0, 1, 2, 3, wide / 3],
+                    kekule: BigUint::from(wide as u64 * 1_000_003 + seed as u64),
+                    nmr: vec![(wide, 1), (seed, 2)],
+                    ..sample_record(seed)
+                }
+            })
+            .collect()
+    }
+
+    #[test]
+    fn hand_reader_agrees_with_postcard_and_views_agree_with_records() {
+        let records = wide_records();
+        let columns = Columns::from_records(&records);
+        let raw = postcard::to_stdvec(&columns).expect("serializes");
+        let by_serde: Columns = postcard::from_bytes(&raw).expect("postcard decodes");
+        assert!(by_serde == columns);
+        let chunk = decode(&encode(&records), 60).expect("decodes");
+        let back: Vec<Record> = (0..chunk.len()).map(|i| chunk.record(i)).collect();
+        assert_eq!(back, records);
+        let body = encode(&records);
+        let mut scratch = Scratch::new();
+        let all = Needs {
+            pentagon_adjacencies: true,
+            automorphisms: true,
+            kekule: true,
+            nmr: true,
+        };
+        let view = scratch.view(&body, all).expect("view");
+        assert_eq!(view.len(), records.len());
+        for (i, r) in records.iter().enumerate() {
+            assert_eq!(view.pentagon_adjacencies(i), r.pentagon_adjacencies);
+            assert_eq!(view.automorphisms(i), r.automorphisms);
+            assert_eq!(BigUint::from_bytes_le(view.kekule_bytes(i)), r.kekule);
+            assert_eq!(view.nmr_pairs(i).collect::<Vec<_>>(), r.nmr);
+            assert_eq!(view.float(1, i), r.hexagon_strain);
+            assert_eq!(view.float(4, i), r.gap);
+            assert_eq!(view.float(5, i), r.pi_energy);
+            assert_eq!(view.ipr(i), r.ipr);
+            assert_eq!(view.chiral(i), r.chiral);
+            assert_eq!(view.point_group_code(i), r.point_group.code());
+            assert_eq!(view.shell_code(i), shell_code(r.shell));
+        }
+        let few = scratch.view(&body, Needs::default()).expect("view");
+        assert_eq!(few.len(), records.len());
+    }
+
+    #[test]
+    fn varints_beyond_u32_and_trailing_bytes_are_errors() {
+        let body = |raw: &[u8]| zstd::bulk::compress(raw, 1).expect("compresses");
+        let good = postcard::to_stdvec(&Columns::from_records(&wide_records())).expect("ser");
+        assert!(decode(&body(&good), 60).is_ok());
+        let mut trailing = good.clone();
+        trailing.push(0);
+        assert!(decode(&body(&trailing), 60).is_err());
+        // count = 2^32 (five varint bytes, the last one too large for a u32).
+        assert!(decode(&body(&[0x80, 0x80, 0x80, 0x80, 0x10]), 60).is_err());
+        for cut in [1, good.len() / 2, good.len() - 1] {
+            assert!(decode(&body(&good[..cut]), 60).is_err(), "cut at {cut}");
+        }
     }
 
     #[test]

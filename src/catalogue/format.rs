@@ -5,7 +5,7 @@
 //!
 //! This module knows nothing about units in flight, locks or queries.
 
-use super::chunk::{self, Chunk, ChunkStats};
+use super::chunk::{self, Chunk, ChunkStats, Needs, Scratch, View};
 use super::crc::crc32;
 use super::record::Record;
 use super::{CatalogueError, Place, RunInfo};
@@ -192,6 +192,9 @@ pub struct DataFile {
     pub index: Index,
     /// Records before each chunk, and IPR records before each chunk.
     before: Vec<(u64, u64)>,
+    /// Compressed bytes of the last chunk read, and decoding buffers, reused across chunks.
+    body: Vec<u8>,
+    scratch: Scratch,
 }
 
 impl DataFile {
@@ -225,6 +228,8 @@ impl DataFile {
             info,
             index,
             before,
+            body: Vec::new(),
+            scratch: Scratch::new(),
         })
     }
 
@@ -244,33 +249,68 @@ impl DataFile {
         self.index.chunks.iter().map(|c| c.stats.ipr).sum()
     }
 
-    /// Reads, checksums and decodes chunk `i`; the record count must match the index.
-    pub fn read_chunk(&mut self, i: usize) -> Result<Chunk, CatalogueError> {
-        let entry = self.index.chunks[i].clone();
+    /// Reads chunk `i`'s compressed bytes into `self.body` and checks them against the index.
+    fn read_body(&mut self, i: usize) -> Result<(), CatalogueError> {
+        let entry = &self.index.chunks[i];
         let place = Place::Chunk(i as u32);
-        let mut body = vec![0u8; entry.len as usize];
+        self.body.clear();
+        self.body.resize(entry.len as usize, 0);
         self.file
             .seek(SeekFrom::Start(entry.offset))
-            .and_then(|_| self.file.read_exact(&mut body))
+            .and_then(|_| self.file.read_exact(&mut self.body))
             .map_err(|e| CatalogueError::corrupt(&self.path, place, format!("cannot read: {e}")))?;
-        if crc32(&body) != entry.crc {
+        if crc32(&self.body) != entry.crc {
             return Err(CatalogueError::corrupt(
                 &self.path,
                 place,
                 "checksum mismatch".into(),
             ));
         }
-        let chunk = chunk::decode(&body, self.info.atoms)
-            .map_err(|d| CatalogueError::corrupt(&self.path, place, d))?;
-        if chunk.len() != entry.records as usize {
-            let d = format!(
-                "holds {} records, index says {}",
-                chunk.len(),
-                entry.records
-            );
-            return Err(CatalogueError::corrupt(&self.path, place, d));
+        Ok(())
+    }
+
+    fn check_count(&self, i: usize, got: usize) -> Result<(), CatalogueError> {
+        let want = self.index.chunks[i].records;
+        if got == want as usize {
+            return Ok(());
         }
+        let d = format!("holds {got} records, index says {want}");
+        Err(CatalogueError::corrupt(
+            &self.path,
+            Place::Chunk(i as u32),
+            d,
+        ))
+    }
+
+    /// Reads, checksums and decodes chunk `i`; the record count must match the index.
+    pub fn read_chunk(&mut self, i: usize) -> Result<Chunk, CatalogueError> {
+        self.read_body(i)?;
+        let chunk = self
+            .scratch
+            .decode(&self.body, self.info.atoms)
+            .map_err(|d| CatalogueError::corrupt(&self.path, Place::Chunk(i as u32), d))?;
+        self.check_count(i, chunk.len())?;
         Ok(chunk)
+    }
+
+    /// Reads and checksums chunk `i` and decodes only the columns in `needs` (for scans that
+    /// filter and rank without building records; spirals are neither decoded nor checked).
+    pub fn scan_chunk(&mut self, i: usize, needs: Needs) -> Result<View<'_>, CatalogueError> {
+        self.read_body(i)?;
+        let want = self.index.chunks[i].records as usize;
+        let view = self
+            .scratch
+            .view(&self.body, needs)
+            .map_err(|d| CatalogueError::corrupt(&self.path, Place::Chunk(i as u32), d))?;
+        if view.len() != want {
+            let d = format!("holds {} records, index says {want}", view.len());
+            return Err(CatalogueError::corrupt(
+                &self.path,
+                Place::Chunk(i as u32),
+                d,
+            ));
+        }
+        Ok(view)
     }
 
     /// Whether records carry complete-list / IPR-list numbers (whole runs only, not shards).

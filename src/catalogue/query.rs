@@ -1,20 +1,22 @@
 //! Filtered, ranked queries over one size of a catalogue. Chunks whose index summary cannot
-//! match the filter are skipped unread; the rest are scanned column-wise and a record is only
-//! built when it passes the filter and enters the top K.
+//! match the filter are skipped unread; the rest are scanned in place, decoding only the columns
+//! the filter and the rank keys read (see [`View`]). The best K are kept in a bounded heap of
+//! small rows; full records are built at the end, from the few chunks that hold them.
 //!
-//! Ranking here is a screening heuristic over stored descriptors, not a prediction of real-world
-//! stability. Printing is left to the CLI.
+//! The order is the scorer's: rows implement [`RankFields`] and are compared by
+//! [`crate::score::rank::compare`]. Ranking here is a screening heuristic over stored
+//! descriptors, not a prediction of real-world stability. Printing is left to the CLI.
 
-use super::chunk::{Chunk, ChunkStats};
+use super::chunk::{ChunkStats, Needs, View};
 use super::format::DataFile;
-use super::record::{normalise_nmr, shell_code, PointGroup, Record};
+use super::record::{normalise_nmr, shell_code, shell_from_code, PointGroup, Record};
 use super::{data_file_name, CatalogueError};
 use crate::cage::FaceSet;
 pub use crate::score::rank::RankKey;
-use crate::score::rank::{default_keys, RankField};
+use crate::score::rank::{self, default_keys, RankField, RankFields};
 use crate::score::Shell;
-use num_bigint::BigUint;
 use std::cmp::Ordering;
+use std::collections::BinaryHeap;
 use std::path::Path;
 
 /// Conditions a record must meet; `None` means "any".
@@ -44,104 +46,163 @@ pub struct Query {
     pub top: Option<usize>,
 }
 
-/// What ranking reads from a record, whether built or still in columns.
-trait Ranked {
-    fn pa(&self) -> u32;
-    fn shell(&self) -> u8;
-    fn homo(&self) -> f32;
-    fn lumo(&self) -> f32;
-    fn gap(&self) -> f32;
-    fn strain(&self) -> f32;
-    fn pi(&self) -> f32;
-    fn kekule(&self) -> BigUint;
-    fn automorphisms(&self) -> u32;
+/// Float columns of a chunk, in [`View::float`] order.
+const STRAIN: usize = 1;
+const HOMO: usize = 2;
+const LUMO: usize = 3;
+const GAP: usize = 4;
+const PI: usize = 5;
+
+/// One matching record as ranking sees it: the values of the rank keys (others left at zero),
+/// its position in the file (spiral order) and where to find it again. While scanning, the
+/// Kekulé bytes are borrowed from the chunk (`K = &[u8]`); only rows that are kept own them,
+/// so a scan ranking by Kekulé count does not allocate per record.
+#[derive(Debug, Clone)]
+struct Row<K = Vec<u8>> {
+    position: u64,
+    chunk: u32,
+    index: u32,
+    pentagon_adjacencies: u32,
+    shell: Shell,
+    hexagon_strain: f32,
+    gap: f32,
+    homo: f32,
+    lumo: f32,
+    pi_energy: f32,
+    automorphisms: u32,
+    /// Little-endian, without high zero bytes; empty unless ranking by Kekulé count.
+    kekule: K,
 }
 
-impl Ranked for Record {
-    fn pa(&self) -> u32 {
+impl<'v> Row<&'v [u8]> {
+    /// Reads the fields `keys` use from record `i` of `view` (the view must hold their columns).
+    fn read(
+        view: &'v View<'_>,
+        i: usize,
+        chunk: usize,
+        position: u64,
+        keys: &[RankKey],
+    ) -> Row<&'v [u8]> {
+        let mut row: Row<&'v [u8]> = Row {
+            position,
+            chunk: chunk as u32,
+            index: i as u32,
+            pentagon_adjacencies: 0,
+            shell: Shell::ProperlyClosed,
+            hexagon_strain: 0.0,
+            gap: 0.0,
+            homo: 0.0,
+            lumo: 0.0,
+            pi_energy: 0.0,
+            automorphisms: 0,
+            kekule: &[],
+        };
+        for key in keys {
+            match key.field {
+                RankField::PentagonAdjacencies => {
+                    row.pentagon_adjacencies = view.pentagon_adjacencies(i)
+                }
+                RankField::Shell => {
+                    row.shell = shell_from_code(view.shell_code(i))
+                        .expect("invariant: shell codes are checked when a chunk is read")
+                }
+                RankField::HexagonStrain => row.hexagon_strain = view.float(STRAIN, i),
+                RankField::Gap => row.gap = view.float(GAP, i),
+                RankField::Homo => row.homo = view.float(HOMO, i),
+                RankField::Lumo => row.lumo = view.float(LUMO, i),
+                RankField::PiEnergy => row.pi_energy = view.float(PI, i),
+                RankField::Kekule => {
+                    let bytes = view.kekule_bytes(i);
+                    let len = bytes.iter().rposition(|&b| b != 0).map_or(0, |p| p + 1);
+                    row.kekule = &bytes[..len];
+                }
+                RankField::Automorphisms => row.automorphisms = view.automorphisms(i),
+                RankField::Spiral => {}
+            }
+        }
+        row
+    }
+
+    fn owned(&self) -> Row {
+        self.with_kekule(self.kekule.to_vec())
+    }
+}
+
+impl<K> Row<K> {
+    fn with_kekule<L>(&self, kekule: L) -> Row<L> {
+        Row {
+            position: self.position,
+            chunk: self.chunk,
+            index: self.index,
+            pentagon_adjacencies: self.pentagon_adjacencies,
+            shell: self.shell,
+            hexagon_strain: self.hexagon_strain,
+            gap: self.gap,
+            homo: self.homo,
+            lumo: self.lumo,
+            pi_energy: self.pi_energy,
+            automorphisms: self.automorphisms,
+            kekule,
+        }
+    }
+}
+
+impl Row {
+    fn borrowed(&self) -> Row<&[u8]> {
+        self.with_kekule(&self.kekule[..])
+    }
+}
+
+/// Stored `f32` values widen exactly to `f64`, so the order is the `f32` order.
+impl<K: AsRef<[u8]>> RankFields for Row<K> {
+    fn pentagon_adjacencies(&self) -> u32 {
         self.pentagon_adjacencies
     }
-    fn shell(&self) -> u8 {
-        shell_code(self.shell)
+    fn shell(&self) -> Shell {
+        self.shell
     }
-    fn homo(&self) -> f32 {
-        self.homo
+    fn hexagon_strain(&self) -> f64 {
+        self.hexagon_strain.into()
     }
-    fn lumo(&self) -> f32 {
-        self.lumo
+    fn gap(&self) -> f64 {
+        self.gap.into()
     }
-    fn gap(&self) -> f32 {
-        self.gap
+    fn homo(&self) -> f64 {
+        self.homo.into()
     }
-    fn strain(&self) -> f32 {
-        self.hexagon_strain
+    fn lumo(&self) -> f64 {
+        self.lumo.into()
     }
-    fn pi(&self) -> f32 {
-        self.pi_energy
-    }
-    fn kekule(&self) -> BigUint {
-        self.kekule.clone()
+    fn pi_energy(&self) -> f64 {
+        self.pi_energy.into()
     }
     fn automorphisms(&self) -> u32 {
         self.automorphisms
     }
-}
-
-/// Record `i` of a decoded chunk, read in place.
-struct InChunk<'a>(&'a Chunk, usize);
-
-impl Ranked for InChunk<'_> {
-    fn pa(&self) -> u32 {
-        self.0.pentagon_adjacencies(self.1)
+    /// Without high zero bytes, the longer number is larger; equal lengths compare from the
+    /// most significant byte.
+    fn cmp_kekule(&self, other: &Row<K>) -> Ordering {
+        let (a, b) = (self.kekule.as_ref(), other.kekule.as_ref());
+        a.len()
+            .cmp(&b.len())
+            .then_with(|| a.iter().rev().cmp(b.iter().rev()))
     }
-    fn shell(&self) -> u8 {
-        self.0.shell_code(self.1)
-    }
-    fn homo(&self) -> f32 {
-        self.0.homo(self.1)
-    }
-    fn lumo(&self) -> f32 {
-        self.0.lumo(self.1)
-    }
-    fn gap(&self) -> f32 {
-        self.0.gap(self.1)
-    }
-    fn strain(&self) -> f32 {
-        self.0.hexagon_strain(self.1)
-    }
-    fn pi(&self) -> f32 {
-        self.0.pi_energy(self.1)
-    }
-    fn kekule(&self) -> BigUint {
-        self.0.kekule(self.1)
-    }
-    fn automorphisms(&self) -> u32 {
-        self.0.automorphisms(self.1)
+    /// Within one data file, position is spiral (isomer-number) order.
+    fn cmp_spiral(&self, other: &Row<K>) -> Ordering {
+        self.position.cmp(&other.position)
     }
 }
 
-/// Comparison by `keys` (each ascending unless marked descending), ties broken by position,
-/// which within one data file is spiral (isomer-number) order: the scorer's ranking rule.
-fn compare(a: &impl Ranked, pa: u64, b: &impl Ranked, pb: u64, keys: &[RankKey]) -> Ordering {
-    for key in keys {
-        let ord = match key.field {
-            RankField::PentagonAdjacencies => a.pa().cmp(&b.pa()),
-            RankField::Shell => a.shell().cmp(&b.shell()),
-            RankField::HexagonStrain => a.strain().total_cmp(&b.strain()),
-            RankField::Gap => a.gap().total_cmp(&b.gap()),
-            RankField::Homo => a.homo().total_cmp(&b.homo()),
-            RankField::Lumo => a.lumo().total_cmp(&b.lumo()),
-            RankField::PiEnergy => a.pi().total_cmp(&b.pi()),
-            RankField::Kekule => a.kekule().cmp(&b.kekule()),
-            RankField::Automorphisms => a.automorphisms().cmp(&b.automorphisms()),
-            RankField::Spiral => pa.cmp(&pb),
-        };
-        let ord = if key.descending { ord.reverse() } else { ord };
-        if ord != Ordering::Equal {
-            return ord;
-        }
+/// The columns a query reads besides flags, point groups and floats.
+fn needs(filter: &Filter, keys: &[RankKey]) -> Needs {
+    let uses = |f: RankField| keys.iter().any(|k| k.field == f);
+    Needs {
+        pentagon_adjacencies: filter.max_pentagon_adjacencies.is_some()
+            || uses(RankField::PentagonAdjacencies),
+        automorphisms: uses(RankField::Automorphisms),
+        kekule: uses(RankField::Kekule),
+        nmr: filter.nmr.is_some(),
     }
-    pa.cmp(&pb)
 }
 
 impl Filter {
@@ -164,10 +225,10 @@ impl Filter {
         pa && gap && shell && group && chiral && ipr
     }
 
-    fn matches_in_chunk(&self, c: &Chunk, i: usize) -> bool {
+    fn matches_in_view(&self, c: &View<'_>, i: usize) -> bool {
         self.max_pentagon_adjacencies
             .is_none_or(|m| c.pentagon_adjacencies(i) <= m)
-            && self.min_gap.is_none_or(|g| c.gap(i) >= g)
+            && self.min_gap.is_none_or(|g| c.float(GAP, i) >= g)
             && self
                 .shell
                 .is_none_or(|sh| c.shell_code(i) == shell_code(sh))
@@ -176,10 +237,25 @@ impl Filter {
                 .is_none_or(|g| c.point_group_code(i) == g.code())
             && self.chiral.is_none_or(|ch| c.chiral(i) == ch)
             && (!self.ipr_only || c.ipr(i))
-            && self.nmr.as_ref().is_none_or(|want| {
-                let pairs: Vec<(u32, u32)> = c.nmr_pairs(i).collect();
-                normalise_nmr(&pairs) == *want
-            })
+            && self.nmr.as_ref().is_none_or(|want| nmr_matches(c, i, want))
+    }
+}
+
+/// Whether record `i`'s NMR pattern has the normal form `want`. Stored patterns are normally
+/// already in normal form (strictly decreasing multiplicities, no zero counts), and then a
+/// direct comparison decides without allocating.
+fn nmr_matches(c: &View<'_>, i: usize, want: &[(u32, u32)]) -> bool {
+    let pairs = c.nmr_pairs(i);
+    let mut prev = u32::MAX;
+    let normal = pairs.clone().all(|(m, n)| {
+        let ok = m < prev && n > 0;
+        prev = m;
+        ok
+    });
+    if normal {
+        pairs.eq(want.iter().copied())
+    } else {
+        normalise_nmr(&pairs.collect::<Vec<_>>()) == want
     }
 }
 
@@ -231,45 +307,91 @@ pub fn query(dir: &Path, q: &Query) -> Result<Vec<Record>, CatalogueError> {
     } else {
         &q.rank_by
     };
+    let needs = needs(&filter, keys);
     let mut kept = Kept::new(q.top, keys);
     let mut position = 0u64;
     for c in 0..file.chunk_count() {
         let entry = &file.index.chunks[c];
         let records = entry.records as u64;
         if filter.may_match(&entry.stats) {
-            let chunk = file.read_chunk(c)?;
-            scan_chunk(&file, c, &chunk, position, &filter, &mut kept);
+            let view = file.scan_chunk(c, needs)?;
+            for i in 0..view.len() {
+                if filter.matches_in_view(&view, i) {
+                    kept.offer(Row::read(&view, i, c, position + i as u64, keys));
+                }
+            }
         }
         position += records;
     }
-    Ok(kept.into_sorted())
+    build(&mut file, kept.into_sorted())
 }
 
-fn scan_chunk(
-    file: &DataFile,
-    c: usize,
-    chunk: &Chunk,
-    base: u64,
-    filter: &Filter,
-    kept: &mut Kept,
-) {
-    let mut ipr_before = 0u64;
-    for i in 0..chunk.len() {
-        let ipr = chunk.ipr(i);
-        if filter.matches_in_chunk(chunk, i) && kept.wants(&InChunk(chunk, i), base + i as u64) {
-            let mut r = chunk.record(i);
-            file.number(c, i, ipr_before, &mut r);
-            kept.insert(r, base + i as u64);
+/// Full, numbered records for `rows` (in that order), reading each chunk they come from once.
+fn build(file: &mut DataFile, rows: Vec<Row>) -> Result<Vec<Record>, CatalogueError> {
+    let mut by_chunk: Vec<(u32, u32, usize)> = rows
+        .iter()
+        .enumerate()
+        .map(|(rank, r)| (r.chunk, r.index, rank))
+        .collect();
+    by_chunk.sort_unstable();
+    let mut out: Vec<Option<Record>> = vec![None; rows.len()];
+    let mut at = 0;
+    while at < by_chunk.len() {
+        let c = by_chunk[at].0;
+        let chunk = file.read_chunk(c as usize)?;
+        let mut ipr_before = 0u64;
+        let mut next = 0usize;
+        while at < by_chunk.len() && by_chunk[at].0 == c {
+            let (_, i, rank) = by_chunk[at];
+            while next < i as usize {
+                ipr_before += chunk.ipr(next) as u64;
+                next += 1;
+            }
+            let mut r = chunk.record(i as usize);
+            file.number(c as usize, i as usize, ipr_before, &mut r);
+            out[rank] = Some(r);
+            at += 1;
         }
-        ipr_before += ipr as u64;
+    }
+    Ok(out
+        .into_iter()
+        .map(|r| r.expect("invariant: every kept row was built"))
+        .collect())
+}
+
+/// A row ordered by the query's keys, so that the heap's top is the worst row kept.
+struct Ranked<'k> {
+    row: Row,
+    keys: &'k [RankKey],
+}
+
+impl PartialEq for Ranked<'_> {
+    fn eq(&self, other: &Self) -> bool {
+        self.cmp(other) == Ordering::Equal
     }
 }
 
-/// The best records so far, sorted best-first (bounded when `top` is set).
+impl Eq for Ranked<'_> {}
+
+impl PartialOrd for Ranked<'_> {
+    fn partial_cmp(&self, other: &Self) -> Option<Ordering> {
+        Some(self.cmp(other))
+    }
+}
+
+impl Ord for Ranked<'_> {
+    fn cmp(&self, other: &Self) -> Ordering {
+        rank::compare(&self.row, &other.row, self.keys)
+    }
+}
+
+/// The best rows so far: a max-heap of at most `top` (worst on top), or every row when `top`
+/// is unset.
 struct Kept<'k> {
     top: Option<usize>,
     keys: &'k [RankKey],
-    list: Vec<(Record, u64)>,
+    heap: BinaryHeap<Ranked<'k>>,
+    all: Vec<Row>,
 }
 
 impl<'k> Kept<'k> {
@@ -277,41 +399,45 @@ impl<'k> Kept<'k> {
         Kept {
             top,
             keys,
-            list: Vec::new(),
+            heap: BinaryHeap::with_capacity(top.unwrap_or(0).min(1 << 16) + 1),
+            all: Vec::new(),
         }
     }
 
-    /// Would a record with these values enter the list?
-    fn wants(&self, r: &impl Ranked, pos: u64) -> bool {
-        match (self.top, self.list.last()) {
-            (None, _) => true,
-            (Some(k), Some((worst, wpos))) if self.list.len() >= k => {
-                compare(r, pos, worst, *wpos, self.keys) == Ordering::Less
-            }
-            (Some(k), _) => k > 0,
-        }
-    }
-
-    fn insert(&mut self, r: Record, pos: u64) {
-        if self.top.is_none() {
-            self.list.push((r, pos));
+    /// Keeps `row` if it beats the worst kept one (or there is room).
+    fn offer(&mut self, row: Row<&[u8]>) {
+        let Some(k) = self.top else {
+            self.all.push(row.owned());
             return;
-        }
-        let at = self
-            .list
-            .partition_point(|(x, xp)| compare(x, *xp, &r, pos, self.keys) == Ordering::Less);
-        self.list.insert(at, (r, pos));
-        if let Some(k) = self.top {
-            self.list.truncate(k);
+        };
+        if self.heap.len() < k {
+            self.heap.push(Ranked {
+                row: row.owned(),
+                keys: self.keys,
+            });
+        } else if let Some(mut worst) = self.heap.peek_mut() {
+            if rank::compare(&row, &worst.row.borrowed(), self.keys) == Ordering::Less {
+                *worst = Ranked {
+                    row: row.owned(),
+                    keys: self.keys,
+                };
+            }
         }
     }
 
-    fn into_sorted(mut self) -> Vec<Record> {
-        if self.top.is_none() {
-            let keys = self.keys;
-            self.list
-                .sort_by(|(a, pa), (b, pb)| compare(a, *pa, b, *pb, keys));
+    fn into_sorted(self) -> Vec<Row> {
+        match self.top {
+            None => {
+                let mut all = self.all;
+                all.sort_unstable_by(|a, b| rank::compare(a, b, self.keys));
+                all
+            }
+            Some(_) => self
+                .heap
+                .into_sorted_vec()
+                .into_iter()
+                .map(|r| r.row)
+                .collect(),
         }
-        self.list.into_iter().map(|(r, _)| r).collect()
     }
 }

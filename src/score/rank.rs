@@ -8,7 +8,7 @@
 //! `docs/ranking.md`. A rank is a screening heuristic, not a prediction of stability or safety.
 //! This module only orders records; it computes no descriptors and prints nothing.
 
-use super::Descriptors;
+use super::{Descriptors, Shell};
 use std::cmp::Ordering;
 use std::fmt;
 use std::str::FromStr;
@@ -157,8 +157,59 @@ pub trait Rankable {
     fn set_rank(&mut self, rank: u64);
 }
 
+/// The values the ranking reads, from whatever holds them: scored isomers, or catalogue rows
+/// still in their columns. Keeping one comparator over this trait means the catalogue's
+/// `query` and the scorer's `rank` cannot drift apart.
+pub trait RankFields {
+    fn pentagon_adjacencies(&self) -> u32;
+    fn shell(&self) -> Shell;
+    fn hexagon_strain(&self) -> f64;
+    fn gap(&self) -> f64;
+    fn homo(&self) -> f64;
+    fn lumo(&self) -> f64;
+    fn pi_energy(&self) -> f64;
+    fn automorphisms(&self) -> u32;
+    /// Exact Kekulé counts compared as integers.
+    fn cmp_kekule(&self, other: &Self) -> Ordering;
+    /// Isomer-number (canonical spiral) order: the `spiral` key and the final tie-break.
+    fn cmp_spiral(&self, other: &Self) -> Ordering;
+}
+
+impl<T: Rankable> RankFields for T {
+    fn pentagon_adjacencies(&self) -> u32 {
+        self.descriptors().pentagon_adjacencies
+    }
+    fn shell(&self) -> Shell {
+        self.descriptors().shell
+    }
+    fn hexagon_strain(&self) -> f64 {
+        self.descriptors().hexagon_strain
+    }
+    fn gap(&self) -> f64 {
+        self.descriptors().gap
+    }
+    fn homo(&self) -> f64 {
+        self.descriptors().homo
+    }
+    fn lumo(&self) -> f64 {
+        self.descriptors().lumo
+    }
+    fn pi_energy(&self) -> f64 {
+        self.descriptors().pi_energy
+    }
+    fn automorphisms(&self) -> u32 {
+        self.descriptors().automorphisms
+    }
+    fn cmp_kekule(&self, other: &Self) -> Ordering {
+        compare_decimal(&self.descriptors().kekule, &other.descriptors().kekule)
+    }
+    fn cmp_spiral(&self, other: &Self) -> Ordering {
+        self.spiral_numbers().cmp(other.spiral_numbers())
+    }
+}
+
 /// Compares two records by `keys`, then by spiral (ascending) so that distinct isomers never tie.
-pub fn compare<T: Rankable>(a: &T, b: &T, keys: &[RankKey]) -> Ordering {
+pub fn compare<T: RankFields>(a: &T, b: &T, keys: &[RankKey]) -> Ordering {
     keys.iter()
         .map(|key| {
             let ord = compare_field(a, b, key.field);
@@ -169,22 +220,21 @@ pub fn compare<T: Rankable>(a: &T, b: &T, keys: &[RankKey]) -> Ordering {
             }
         })
         .find(|ord| ord.is_ne())
-        .unwrap_or_else(|| a.spiral_numbers().cmp(b.spiral_numbers()))
+        .unwrap_or_else(|| a.cmp_spiral(b))
 }
 
-fn compare_field<T: Rankable>(a: &T, b: &T, field: RankField) -> Ordering {
-    let (x, y) = (a.descriptors(), b.descriptors());
+fn compare_field<T: RankFields>(a: &T, b: &T, field: RankField) -> Ordering {
     match field {
-        RankField::PentagonAdjacencies => x.pentagon_adjacencies.cmp(&y.pentagon_adjacencies),
-        RankField::Shell => x.shell.cmp(&y.shell),
-        RankField::HexagonStrain => x.hexagon_strain.total_cmp(&y.hexagon_strain),
-        RankField::Gap => x.gap.total_cmp(&y.gap),
-        RankField::Homo => x.homo.total_cmp(&y.homo),
-        RankField::Lumo => x.lumo.total_cmp(&y.lumo),
-        RankField::PiEnergy => x.pi_energy.total_cmp(&y.pi_energy),
-        RankField::Kekule => compare_decimal(&x.kekule, &y.kekule),
-        RankField::Automorphisms => x.automorphisms.cmp(&y.automorphisms),
-        RankField::Spiral => a.spiral_numbers().cmp(b.spiral_numbers()),
+        RankField::PentagonAdjacencies => a.pentagon_adjacencies().cmp(&b.pentagon_adjacencies()),
+        RankField::Shell => a.shell().cmp(&b.shell()),
+        RankField::HexagonStrain => a.hexagon_strain().total_cmp(&b.hexagon_strain()),
+        RankField::Gap => a.gap().total_cmp(&b.gap()),
+        RankField::Homo => a.homo().total_cmp(&b.homo()),
+        RankField::Lumo => a.lumo().total_cmp(&b.lumo()),
+        RankField::PiEnergy => a.pi_energy().total_cmp(&b.pi_energy()),
+        RankField::Kekule => a.cmp_kekule(b),
+        RankField::Automorphisms => a.automorphisms().cmp(&b.automorphisms()),
+        RankField::Spiral => a.cmp_spiral(b),
     }
 }
 
