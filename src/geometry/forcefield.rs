@@ -32,6 +32,10 @@ const LENGTH_C60_66: f64 = 1.401;
 /// single bond (ethane, 1.535 Å). From memory: gas-phase values, CRC Handbook.
 const LENGTH_DOUBLE: f64 = 1.339;
 const LENGTH_SINGLE: f64 = 1.535;
+/// Stiffness of the inversion restraint, in aJ/Å⁶ (the signed volume is in Å³). Common practice,
+/// no source: a C60 atom's volume is about 1.5 Å³, so an inverted atom costs of the order of a
+/// ring-angle term, enough to pop a dimple without distorting anything else.
+const K_INVERSION: f64 = 1.0;
 
 /// Reference bond length for a Pauling bond order.
 ///
@@ -65,11 +69,13 @@ struct Bend {
     theta0: f64,
 }
 
-/// The force field of one cage: every bond and every ring angle.
+/// The force field of one cage: every bond and every ring angle, plus the atoms' neighbours in
+/// rotation order for the inversion restraint.
 #[derive(Debug, Clone)]
 pub struct ForceField {
     stretches: Vec<Stretch>,
     bends: Vec<Bend>,
+    rotation: Vec<[usize; 3]>,
 }
 
 impl ForceField {
@@ -78,7 +84,66 @@ impl ForceField {
         ForceField {
             stretches: stretches(cage, pauling),
             bends: bends(cage),
+            rotation: cage
+                .rotation()
+                .iter()
+                .map(|r| r.map(|v| v as usize))
+                .collect(),
         }
+    }
+
+    /// +1 or -1: the sign most atoms give to their signed volume (see [`Self::add_inversion`])
+    /// at `x`. A convex embedding gives every atom the same sign, which one depends only on
+    /// the handedness of the coordinates.
+    pub fn orientation(&self, x: &[f64]) -> f64 {
+        let positive = (0..self.rotation.len())
+            .filter(|&i| self.signed_volume(x, i) > 0.0)
+            .count();
+        if 2 * positive >= self.rotation.len() {
+            1.0
+        } else {
+            -1.0
+        }
+    }
+
+    /// Adds a one-sided restraint against inverted atoms to `grad` and returns its energy (aJ).
+    ///
+    /// Bond and ring-angle terms do not change when an atom is reflected through the plane of
+    /// its three neighbours, so a cap that starts flat (as the ends of an elongated cage do in
+    /// topological coordinates) can relax dimpled inwards, a false minimum. The signed volume
+    /// V = (a - i)·((b - i) × (c - i)) of atom i with neighbours a, b, c in rotation order has
+    /// the same sign at every atom of a convex cage; atoms with V of the other sign
+    /// (`orientation` × V < 0) get E = k/2 V². Convex geometries feel nothing.
+    pub fn add_inversion(&self, x: &[f64], grad: &mut [f64], orientation: f64) -> f64 {
+        let mut energy = 0.0;
+        for (i, &[a, b, c]) in self.rotation.iter().enumerate() {
+            let v = orientation * self.signed_volume(x, i);
+            if v >= 0.0 {
+                continue;
+            }
+            let o = atom(x, i);
+            let (u, w, z) = (sub(atom(x, a), o), sub(atom(x, b), o), sub(atom(x, c), o));
+            // dE/dV_signed = k V orientation², with orientation² = 1.
+            let scale = K_INVERSION * v * orientation;
+            let (ga, gb, gc) = (cross(w, z), cross(z, u), cross(u, w));
+            accumulate(grad, a, ga, scale);
+            accumulate(grad, b, gb, scale);
+            accumulate(grad, c, gc, scale);
+            for g in [ga, gb, gc] {
+                accumulate(grad, i, g, -scale);
+            }
+            energy += 0.5 * K_INVERSION * v * v;
+        }
+        energy
+    }
+
+    fn signed_volume(&self, x: &[f64], i: usize) -> f64 {
+        let [a, b, c] = self.rotation[i];
+        let o = atom(x, i);
+        dot(
+            sub(atom(x, a), o),
+            cross(sub(atom(x, b), o), sub(atom(x, c), o)),
+        )
     }
 
     /// Energy in aJ at `x` (3 coordinates per atom, Å); writes the gradient (aJ/Å) into `grad`.
@@ -155,6 +220,14 @@ fn accumulate(grad: &mut [f64], i: usize, v: [f64; 3], scale: f64) {
 
 fn sub(a: [f64; 3], b: [f64; 3]) -> [f64; 3] {
     [a[0] - b[0], a[1] - b[1], a[2] - b[2]]
+}
+
+fn cross(a: [f64; 3], b: [f64; 3]) -> [f64; 3] {
+    [
+        a[1] * b[2] - a[2] * b[1],
+        a[2] * b[0] - a[0] * b[2],
+        a[0] * b[1] - a[1] * b[0],
+    ]
 }
 
 fn dot(a: [f64; 3], b: [f64; 3]) -> f64 {

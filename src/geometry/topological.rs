@@ -17,18 +17,33 @@ const CANDIDATE_LEVELS: usize = 6;
 /// Smallest acceptable distance between two atoms, as a fraction of the mean bond length.
 /// Common practice, no source: atoms that nearly coincide make a start the minimiser cannot untangle.
 const MIN_SEPARATION: f64 = 0.3;
+/// Coefficients below this fraction of the largest one count as zero when counting nodal domains.
+/// Common practice, no source: well above rounding (1e-15) and well below any real coefficient.
+const NODE_TOLERANCE: f64 = 1e-8;
 
 /// Topological coordinates of `cage` scaled to a mean bond of [`START_BOND`] Å, or `None` if no
-/// triple of low-lying p-type-like eigenvectors separates the atoms.
+/// triple of low-lying eigenvectors separates the atoms.
+///
+/// The three axes are Manolopoulos & Fowler's p-type eigenvectors: the highest levels below the
+/// top one whose eigenvector has a single nodal surface, i.e. exactly two nodal domains. On a
+/// near-spherical cage these are the first three levels; on an elongated one the first levels
+/// are waves along the axis (cos kπz/L, k + 1 domains) and the two transverse p levels come
+/// later, which is why the choice is by nodal domains and not by position. If that triple does
+/// not separate the atoms, triples of the first [`CANDIDATE_LEVELS`] levels are tried in order.
 ///
 /// Each axis is scaled by 1/sqrt(3 - x) (x its eigenvalue): for a normalised eigenvector c,
 /// sum over bonds of (c_i - c_j)² = 3 - x, so the scaling makes each axis contribute equally to
 /// bond lengths, which in the continuum limit gives an elongated cage its true aspect ratio.
 pub fn coordinates(cage: &Cage) -> Option<Vec<[f64; 3]>> {
     let (values, vectors) = eigen_decomposition(cage);
+    let p_type: Vec<usize> = (1..values.len())
+        .filter(|&level| nodal_domains(cage, &vectors[level]) == 2)
+        .take(3)
+        .collect();
     let top = (1 + CANDIDATE_LEVELS).min(values.len());
+    let preferred = <[usize; 3]>::try_from(p_type).ok();
     let mut best: Option<(f64, Vec<[f64; 3]>)> = None;
-    for triple in triples(1, top) {
+    for triple in preferred.into_iter().chain(triples(1, top)) {
         let Some(coords) = embed(cage, &values, &vectors, triple) else {
             continue;
         };
@@ -41,6 +56,44 @@ pub fn coordinates(cage: &Cage) -> Option<Vec<[f64; 3]>> {
         }
     }
     best.filter(|(s, _)| *s > 0.0).map(|(_, c)| c)
+}
+
+/// Number of nodal domains of `vector` on the cage: connected groups of bonded atoms whose
+/// coefficients share a sign. Atoms with a coefficient that is zero to rounding (on a nodal
+/// plane) belong to no domain, so rounding noise cannot split one.
+pub fn nodal_domains(cage: &Cage, vector: &[f64]) -> usize {
+    let largest = vector.iter().fold(0.0_f64, |m, c| m.max(c.abs()));
+    let sign = |i: usize| {
+        let c = vector[i];
+        if c.abs() <= NODE_TOLERANCE * largest {
+            0
+        } else if c > 0.0 {
+            1
+        } else {
+            -1
+        }
+    };
+    let mut seen = vec![false; vector.len()];
+    let mut stack = Vec::new();
+    let mut domains = 0;
+    for start in 0..vector.len() {
+        if seen[start] || sign(start) == 0 {
+            continue;
+        }
+        domains += 1;
+        seen[start] = true;
+        stack.push(start);
+        while let Some(i) = stack.pop() {
+            for &j in &cage.rotation()[i] {
+                let j = j as usize;
+                if !seen[j] && sign(j) == sign(i) {
+                    seen[j] = true;
+                    stack.push(j);
+                }
+            }
+        }
+    }
+    domains
 }
 
 /// Index triples i < j < k in `from..to`, in lexicographic order so (1, 2, 3) comes first.
