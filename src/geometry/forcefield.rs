@@ -268,3 +268,79 @@ impl Bend {
         0.5 * self.k * delta * delta
     }
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::score::bonds::pauling_bond_orders;
+    use crate::spiral::Spiral;
+
+    fn c60() -> Cage {
+        // from memory: Fowler & Manolopoulos, An Atlas of Fullerenes (1995), C60-Ih spiral.
+        Spiral::from_pentagon_indices(60, &[1, 7, 9, 11, 13, 15, 18, 20, 22, 24, 26, 32])
+            .unwrap()
+            .to_cage()
+    }
+
+    /// Topological start of C60 with atom 0 pushed through the plane of its neighbours.
+    fn dimpled_c60() -> (ForceField, Vec<f64>, f64) {
+        let cage = c60();
+        let field = ForceField::new(&cage, &pauling_bond_orders(&cage));
+        let start = crate::geometry::topological::coordinates(&cage).unwrap();
+        let mut x: Vec<f64> = start.iter().flatten().copied().collect();
+        let orientation = field.orientation(&x);
+        let centre: [f64; 3] = std::array::from_fn(|d| {
+            field.rotation[0].iter().map(|&j| x[3 * j + d]).sum::<f64>() / 3.0
+        });
+        for d in 0..3 {
+            x[d] = centre[d] - 0.4 * (x[d] - centre[d]);
+        }
+        (field, x, orientation)
+    }
+
+    #[test]
+    fn convex_start_feels_no_restraint_and_a_dimple_does() {
+        let (field, x, orientation) = dimpled_c60();
+        let mut grad = vec![0.0; x.len()];
+        assert!(field.add_inversion(&x, &mut grad, orientation) > 0.0);
+        let cage = c60();
+        let start = crate::geometry::topological::coordinates(&cage).unwrap();
+        let convex: Vec<f64> = start.iter().flatten().copied().collect();
+        let mut grad = vec![0.0; convex.len()];
+        assert_eq!(field.add_inversion(&convex, &mut grad, orientation), 0.0);
+        assert!(grad.iter().all(|&g| g == 0.0));
+    }
+
+    #[test]
+    fn restrained_gradient_matches_finite_differences() {
+        let (field, x, orientation) = dimpled_c60();
+        let total = |p: &[f64], g: &mut [f64]| {
+            field.energy_gradient(p, g) + field.add_inversion(p, g, orientation)
+        };
+        let mut grad = vec![0.0; x.len()];
+        total(&x, &mut grad);
+        let mut scratch = vec![0.0; x.len()];
+        let h = 1e-6;
+        // The dimpled atom, a neighbour and a distant atom, every coordinate.
+        let neighbour = field.rotation[0][0];
+        for i in [
+            0,
+            1,
+            2,
+            3 * neighbour,
+            3 * neighbour + 1,
+            3 * neighbour + 2,
+            90,
+        ] {
+            let (mut plus, mut minus) = (x.clone(), x.clone());
+            plus[i] += h;
+            minus[i] -= h;
+            let numeric = (total(&plus, &mut scratch) - total(&minus, &mut scratch)) / (2.0 * h);
+            assert!(
+                (numeric - grad[i]).abs() < 1e-5 * (1.0 + numeric.abs()),
+                "coordinate {i}: analytic {} numeric {numeric}",
+                grad[i]
+            );
+        }
+    }
+}

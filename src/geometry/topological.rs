@@ -153,3 +153,38 @@ pub fn min_separation(coords: &[[f64; 3]]) -> f64 {
     }
     best
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::spiral::Spiral;
+
+    #[test]
+    fn c60_has_one_domain_at_the_top_level_two_at_p_and_more_at_d() {
+        // from memory: Fowler & Manolopoulos, An Atlas of Fullerenes (1995), C60-Ih spiral.
+        let cage =
+            Spiral::from_pentagon_indices(60, &[1, 7, 9, 11, 13, 15, 18, 20, 22, 24, 26, 32])
+                .unwrap()
+                .to_cage();
+        let (_, vectors) = eigen_decomposition(&cage);
+        // Levels 1-3 are the t1u (p-type) level, 4-8 the hg (d-type) level (from memory: Hückel
+        // spectrum of C60: 3, then x = 2.757 threefold, then x = 2.303 fivefold).
+        let domains: Vec<usize> = (0..9).map(|l| nodal_domains(&cage, &vectors[l])).collect();
+        assert_eq!(&domains[..4], &[1, 2, 2, 2]);
+        assert!(domains[4..].iter().all(|&d| d >= 3), "{domains:?}");
+    }
+
+    #[test]
+    fn a_long_tube_gets_separated_atoms() {
+        // A (5,5) tube C500 capped by C60 halves (as in tests/geometry.rs): its first five
+        // levels below the top are waves along the axis, which put whole rings on one point.
+        let cage = Spiral::from_pentagon_indices(
+            500,
+            &[1, 7, 9, 11, 13, 15, 238, 240, 242, 244, 246, 252],
+        )
+        .unwrap()
+        .to_cage();
+        let coords = coordinates(&cage).unwrap();
+        assert!(min_separation(&coords) >= MIN_SEPARATION * START_BOND);
+    }
+}
