@@ -234,6 +234,21 @@ fn large_tube_and_icosahedral_cages_relax_to_valid_convex_geometries() {
 }
 
 #[test]
+fn a_thousand_atom_tube_relaxes_to_a_valid_convex_geometry() {
+    // The same construction with 94 rings: no eigenvector triple separates its atoms (the caps
+    // are squeezed), so the start comes from the stress-majorisation fallback.
+    let cage = wind(1000, &[1, 7, 9, 11, 13, 15, 488, 490, 492, 494, 496, 502]);
+    let g = geometry::relax(&cage).unwrap();
+    assert!(g.converged, "{g:?}");
+    let (lo, hi) = spread(&bond_lengths(&cage, &g.coords));
+    assert!(lo >= 1.33 && hi <= 1.55, "bonds {lo:.3}..{hi:.3}");
+    let contact = min_nonbonded(&cage, &g.coords);
+    assert!(contact >= 2.0, "contact {contact:.3}");
+    let bulge = worst_bulge_beyond_a_ring(&cage, &g.coords);
+    assert!(bulge < 0.05, "an atom {bulge:.3} Å beyond a ring");
+}
+
+#[test]
 fn tube_keeps_its_length_and_icosahedral_cage_its_roundness() {
     let tube = geometry::relax(&tube_c500()).unwrap();
     let radii = |coords: &[[f64; 3]]| -> Vec<f64> {
