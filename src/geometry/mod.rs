@@ -1,6 +1,10 @@
 //! 3D starting geometries for carbon cages: topological coordinates from the Hückel
 //! eigenvectors, relaxed with a published valence force field by L-BFGS.
 //!
+//! Elongated cages need care at both ends: the p-type eigenvectors are picked by their nodal
+//! domains (see [`topological::coordinates`]), and a first, restrained minimisation keeps caps
+//! that start flat from relaxing dimpled inwards (see [`forcefield::ForceField::add_inversion`]).
+//!
 //! The result is a starting point for quantum chemistry, not a refined structure. This module
 //! reads a [`Cage`] and returns coordinates in Å; writing files is left to `export`, and bond
 //! orders and eigenvectors come from `score`.
