@@ -32,6 +32,10 @@ const LENGTH_C60_66: f64 = 1.401;
 /// single bond (ethane, 1.535 Å). From memory: gas-phase values, CRC Handbook.
 const LENGTH_DOUBLE: f64 = 1.339;
 const LENGTH_SINGLE: f64 = 1.535;
+/// Stiffness of the inversion restraint, in aJ/Å⁶ (the signed volume is in Å³). Common practice,
+/// no source: a C60 atom's volume is about 1.5 Å³, so an inverted atom costs of the order of a
+/// ring-angle term, enough to pop a dimple without distorting anything else.
+const K_INVERSION: f64 = 1.0;
 
 /// Reference bond length for a Pauling bond order.
 ///
@@ -65,11 +69,13 @@ struct Bend {
     theta0: f64,
 }
 
-/// The force field of one cage: every bond and every ring angle.
+/// The force field of one cage: every bond and every ring angle, plus the atoms' neighbours in
+/// rotation order for the inversion restraint.
 #[derive(Debug, Clone)]
 pub struct ForceField {
     stretches: Vec<Stretch>,
     bends: Vec<Bend>,
+    rotation: Vec<[usize; 3]>,
 }
 
 impl ForceField {
@@ -78,7 +84,66 @@ impl ForceField {
         ForceField {
             stretches: stretches(cage, pauling),
             bends: bends(cage),
+            rotation: cage
+                .rotation()
+                .iter()
+                .map(|r| r.map(|v| v as usize))
+                .collect(),
         }
+    }
+
+    /// +1 or -1: the sign most atoms give to their signed volume (see [`Self::add_inversion`])
+    /// at `x`. A convex embedding gives every atom the same sign, which one depends only on
+    /// the handedness of the coordinates.
+    pub fn orientation(&self, x: &[f64]) -> f64 {
+        let positive = (0..self.rotation.len())
+            .filter(|&i| self.signed_volume(x, i) > 0.0)
+            .count();
+        if 2 * positive >= self.rotation.len() {
+            1.0
+        } else {
+            -1.0
+        }
+    }
+
+    /// Adds a one-sided restraint against inverted atoms to `grad` and returns its energy (aJ).
+    ///
+    /// Bond and ring-angle terms do not change when an atom is reflected through the plane of
+    /// its three neighbours, so a cap that starts flat (as the ends of an elongated cage do in
+    /// topological coordinates) can relax dimpled inwards, a false minimum. The signed volume
+    /// V = (a - i)·((b - i) × (c - i)) of atom i with neighbours a, b, c in rotation order has
+    /// the same sign at every atom of a convex cage; atoms with V of the other sign
+    /// (`orientation` × V < 0) get E = k/2 V². Convex geometries feel nothing.
+    pub fn add_inversion(&self, x: &[f64], grad: &mut [f64], orientation: f64) -> f64 {
+        let mut energy = 0.0;
+        for (i, &[a, b, c]) in self.rotation.iter().enumerate() {
+            let v = orientation * self.signed_volume(x, i);
+            if v >= 0.0 {
+                continue;
+            }
+            let o = atom(x, i);
+            let (u, w, z) = (sub(atom(x, a), o), sub(atom(x, b), o), sub(atom(x, c), o));
+            // dE/dV_signed = k V orientation², with orientation² = 1.
+            let scale = K_INVERSION * v * orientation;
+            let (ga, gb, gc) = (cross(w, z), cross(z, u), cross(u, w));
+            accumulate(grad, a, ga, scale);
+            accumulate(grad, b, gb, scale);
+            accumulate(grad, c, gc, scale);
+            for g in [ga, gb, gc] {
+                accumulate(grad, i, g, -scale);
+            }
+            energy += 0.5 * K_INVERSION * v * v;
+        }
+        energy
+    }
+
+    fn signed_volume(&self, x: &[f64], i: usize) -> f64 {
+        let [a, b, c] = self.rotation[i];
+        let o = atom(x, i);
+        dot(
+            sub(atom(x, a), o),
+            cross(sub(atom(x, b), o), sub(atom(x, c), o)),
+        )
     }
 
     /// Energy in aJ at `x` (3 coordinates per atom, Å); writes the gradient (aJ/Å) into `grad`.
@@ -157,6 +222,14 @@ fn sub(a: [f64; 3], b: [f64; 3]) -> [f64; 3] {
     [a[0] - b[0], a[1] - b[1], a[2] - b[2]]
 }
 
+fn cross(a: [f64; 3], b: [f64; 3]) -> [f64; 3] {
+    [
+        a[1] * b[2] - a[2] * b[1],
+        a[2] * b[0] - a[0] * b[2],
+        a[0] * b[1] - a[1] * b[0],
+    ]
+}
+
 fn dot(a: [f64; 3], b: [f64; 3]) -> f64 {
     a[0] * b[0] + a[1] * b[1] + a[2] * b[2]
 }
@@ -193,5 +266,81 @@ impl Bend {
         accumulate(grad, self.centre, ga, -de_dcos);
         accumulate(grad, self.centre, gb, -de_dcos);
         0.5 * self.k * delta * delta
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::score::bonds::pauling_bond_orders;
+    use crate::spiral::Spiral;
+
+    fn c60() -> Cage {
+        // from memory: Fowler & Manolopoulos, An Atlas of Fullerenes (1995), C60-Ih spiral.
+        Spiral::from_pentagon_indices(60, &[1, 7, 9, 11, 13, 15, 18, 20, 22, 24, 26, 32])
+            .unwrap()
+            .to_cage()
+    }
+
+    /// Topological start of C60 with atom 0 pushed through the plane of its neighbours.
+    fn dimpled_c60() -> (ForceField, Vec<f64>, f64) {
+        let cage = c60();
+        let field = ForceField::new(&cage, &pauling_bond_orders(&cage));
+        let start = crate::geometry::topological::coordinates(&cage).unwrap();
+        let mut x: Vec<f64> = start.iter().flatten().copied().collect();
+        let orientation = field.orientation(&x);
+        let centre: [f64; 3] = std::array::from_fn(|d| {
+            field.rotation[0].iter().map(|&j| x[3 * j + d]).sum::<f64>() / 3.0
+        });
+        for d in 0..3 {
+            x[d] = centre[d] - 0.4 * (x[d] - centre[d]);
+        }
+        (field, x, orientation)
+    }
+
+    #[test]
+    fn convex_start_feels_no_restraint_and_a_dimple_does() {
+        let (field, x, orientation) = dimpled_c60();
+        let mut grad = vec![0.0; x.len()];
+        assert!(field.add_inversion(&x, &mut grad, orientation) > 0.0);
+        let cage = c60();
+        let start = crate::geometry::topological::coordinates(&cage).unwrap();
+        let convex: Vec<f64> = start.iter().flatten().copied().collect();
+        let mut grad = vec![0.0; convex.len()];
+        assert_eq!(field.add_inversion(&convex, &mut grad, orientation), 0.0);
+        assert!(grad.iter().all(|&g| g == 0.0));
+    }
+
+    #[test]
+    fn restrained_gradient_matches_finite_differences() {
+        let (field, x, orientation) = dimpled_c60();
+        let total = |p: &[f64], g: &mut [f64]| {
+            field.energy_gradient(p, g) + field.add_inversion(p, g, orientation)
+        };
+        let mut grad = vec![0.0; x.len()];
+        total(&x, &mut grad);
+        let mut scratch = vec![0.0; x.len()];
+        let h = 1e-6;
+        // The dimpled atom, a neighbour and a distant atom, every coordinate.
+        let neighbour = field.rotation[0][0];
+        for i in [
+            0,
+            1,
+            2,
+            3 * neighbour,
+            3 * neighbour + 1,
+            3 * neighbour + 2,
+            90,
+        ] {
+            let (mut plus, mut minus) = (x.clone(), x.clone());
+            plus[i] += h;
+            minus[i] -= h;
+            let numeric = (total(&plus, &mut scratch) - total(&minus, &mut scratch)) / (2.0 * h);
+            assert!(
+                (numeric - grad[i]).abs() < 1e-5 * (1.0 + numeric.abs()),
+                "coordinate {i}: analytic {} numeric {numeric}",
+                grad[i]
+            );
+        }
     }
 }

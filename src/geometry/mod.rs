@@ -1,6 +1,10 @@
 //! 3D starting geometries for carbon cages: topological coordinates from the Hückel
 //! eigenvectors, relaxed with a published valence force field by L-BFGS.
 //!
+//! Elongated cages need care at both ends: the p-type eigenvectors are picked by their nodal
+//! domains (see [`topological::coordinates`]), and a first, restrained minimisation keeps caps
+//! that start flat from relaxing dimpled inwards (see [`forcefield::ForceField::add_inversion`]).
+//!
 //! The result is a starting point for quantum chemistry, not a refined structure. This module
 //! reads a [`Cage`] and returns coordinates in Å; writing files is left to `export`, and bond
 //! orders and eigenvectors come from `score`.
@@ -24,6 +28,10 @@ use std::fmt;
 
 /// 1 aJ in eV (CODATA 2018: 1 eV = 1.602176634e-19 J, exact).
 pub const EV_PER_AJ: f64 = 1.0 / 0.160_217_663_4;
+
+/// Force (aJ/Å) to which the restrained first stage of [`relax_with`] is taken. Common practice,
+/// no source: loose enough to be cheap, tight enough that the cage's shape is settled.
+const RESTRAINED_FORCE: f64 = 1e-2;
 
 /// A relaxed cage geometry.
 #[derive(Debug, Clone, PartialEq)]
@@ -73,7 +81,19 @@ pub fn relax_with(cage: &Cage, settings: minimise::Settings) -> Result<Geometry,
     })?;
     let field = forcefield::ForceField::new(cage, &pauling_bond_orders(cage));
     let mut x: Vec<f64> = start.iter().flatten().copied().collect();
-    let outcome = minimise::lbfgs(&mut x, settings, |p, g| field.energy_gradient(p, g));
+    // First with the inversion restraint, loosely, so no cap settles dimpled inwards; then the
+    // force field alone from there, so the result is its minimum and not the restraint's.
+    let orientation = field.orientation(&x);
+    let restrained = minimise::lbfgs(
+        &mut x,
+        minimise::Settings {
+            max_force: settings.max_force.max(RESTRAINED_FORCE),
+            ..settings
+        },
+        |p, g| field.energy_gradient(p, g) + field.add_inversion(p, g, orientation),
+    );
+    let mut outcome = minimise::lbfgs(&mut x, settings, |p, g| field.energy_gradient(p, g));
+    outcome.iterations += restrained.iterations;
     let coords = centred(x.chunks(3).map(|c| [c[0], c[1], c[2]]).collect());
     Ok(Geometry {
         coords,
