@@ -30,8 +30,8 @@ use std::collections::HashMap;
 use std::fmt;
 use std::hash::{BuildHasherDefault, Hasher};
 use std::ops::ControlFlow;
-use std::ops::Range;
 use std::str::FromStr;
+use std::sync::{Mutex, MutexGuard, OnceLock};
 
 /// Smallest atom count from which some fullerenes have no face spiral at all (T-C380;
 /// Wirz, Tonner, Avery, Schwerdtfeger, J. Chem. Inf. Model. 54 (2014) 121).
@@ -196,25 +196,63 @@ impl Budget {
 /// bits a face in a `u32`).
 const MEMO_DEPTH: usize = 14;
 
-/// Bounds on one thread's memo (about 60 MB at most); it is emptied when either is reached.
-const MEMO_MAX_BOUNDARIES: usize = 1 << 20;
-const MEMO_MAX_CODES: usize = 1 << 22;
+/// Bounds on the shared store of completions (about 300 MB at most); a shard is emptied when
+/// it reaches its part of either.
+const STORE_MAX_BOUNDARIES: usize = 1 << 22;
+const STORE_MAX_CODES: usize = 1 << 24;
+const STORE_SHARDS: usize = 64;
 
 thread_local! {
-    /// One memo per worker thread, kept across the units it runs (boundaries recur between
-    /// units).
+    /// Per-thread search scratch and memo statistics.
     static MEMO: RefCell<Memo> = RefCell::new(Memo::default());
 }
 
-/// Completions of the end of the search by open boundary (see [`Search::solve`]).
+/// Completions found so far, shared by every thread (each would otherwise learn the same
+/// boundaries again) and kept across units and runs: entries are keyed by the run's
+/// [`spec_tag`] and the boundary key. Sharded so that threads rarely wait on one lock.
+static STORE: OnceLock<Vec<Mutex<StoreShard>>> = OnceLock::new();
+
+#[derive(Default)]
+struct StoreShard {
+    /// (spec tag, boundary key) → range of `codes`.
+    map: HashMap<(u64, u128), (u32, u32), BuildHasherDefault<KeyHasher>>,
+    codes: Vec<u32>,
+}
+
+fn store_shard(tag: u64, key: u128) -> MutexGuard<'static, StoreShard> {
+    let shards = STORE.get_or_init(|| {
+        (0..STORE_SHARDS)
+            .map(|_| Mutex::new(StoreShard::default()))
+            .collect()
+    });
+    let mut h = KeyHasher(tag);
+    h.write_u128(key);
+    let shard = &shards[(h.finish() >> 58) as usize % STORE_SHARDS];
+    // A panic elsewhere cannot leave a shard inconsistent: ranges are inserted after their codes.
+    shard
+        .lock()
+        .unwrap_or_else(|poisoned| poisoned.into_inner())
+}
+
+/// An injective code of everything in a [`Spec`] that shapes the search.
+fn spec_tag(spec: &Spec) -> u64 {
+    let set = match spec.face_set {
+        FaceSet::Fullerene => 0u64,
+        FaceSet::SquareHexagon => 1,
+        FaceSet::SquarePentagonHexagon => 2,
+    };
+    u64::from(spec.atoms) | set << 32 | u64::from(spec.ipr) << 34 | u64::from(spec.all_starts) << 35
+}
+
+/// One thread's side of the memo (see [`Search::solve`]).
 #[derive(Default)]
 struct Memo {
     spec: Option<Spec>,
-    /// Boundary key → range of `codes`.
-    map: HashMap<u128, (u32, u32), BuildHasherDefault<KeyHasher>>,
-    codes: Vec<u32>,
+    tag: u64,
     /// Completion codes of the prefixes being searched.
     stack: Vec<u32>,
+    /// Codes copied out of the store for replay.
+    replay: Vec<u32>,
     /// Boundaries are looked up with at most this many faces to go; lowered while running
     /// when lookups at the deepest level rarely hit (IPR boundaries seldom repeat).
     depth: usize,
@@ -224,12 +262,11 @@ struct Memo {
 }
 
 impl Memo {
-    /// Empties the memo if it was filled for another run.
+    /// Resets the statistics if they were gathered for another run.
     fn prepare(&mut self, spec: &Spec) {
         if self.spec != Some(*spec) {
-            self.map.clear();
-            self.codes.clear();
             self.spec = Some(*spec);
+            self.tag = spec_tag(spec);
             self.depth = MEMO_DEPTH;
             self.lookups = [0; MEMO_DEPTH + 1];
             self.hits = [0; MEMO_DEPTH + 1];
@@ -248,19 +285,37 @@ impl Memo {
         }
     }
 
+    /// Copies the stored completions of boundary `key` into `self.replay`; false if unknown.
+    fn recall(&mut self, key: u128) -> bool {
+        let shard = store_shard(self.tag, key);
+        let Some(&(from, to)) = shard.map.get(&(self.tag, key)) else {
+            return false;
+        };
+        self.replay.clear();
+        self.replay
+            .extend_from_slice(&shard.codes[from as usize..to as usize]);
+        true
+    }
+
     /// Stores `stack[from..]` as the completions of boundary `key`.
     fn remember(&mut self, key: u128, from: usize) {
-        let new = self.stack.len() - from;
-        if self.map.len() >= MEMO_MAX_BOUNDARIES || self.codes.len() + new > MEMO_MAX_CODES {
-            self.map.clear();
-            self.codes.clear();
-        }
-        if new > MEMO_MAX_CODES {
+        let new = &self.stack[from..];
+        let (max_boundaries, max_codes) = (
+            STORE_MAX_BOUNDARIES / STORE_SHARDS,
+            STORE_MAX_CODES / STORE_SHARDS,
+        );
+        if new.len() > max_codes {
             return;
         }
-        let start = self.codes.len() as u32;
-        self.codes.extend_from_slice(&self.stack[from..]);
-        self.map.insert(key, (start, self.codes.len() as u32));
+        let mut shard = store_shard(self.tag, key);
+        if shard.map.len() >= max_boundaries || shard.codes.len() + new.len() > max_codes {
+            shard.map.clear();
+            shard.codes.clear();
+        }
+        let start = shard.codes.len() as u32;
+        shard.codes.extend_from_slice(new);
+        let end = shard.codes.len() as u32;
+        shard.map.insert((self.tag, key), (start, end));
     }
 }
 
@@ -278,6 +333,11 @@ impl Hasher for KeyHasher {
         for &b in bytes {
             self.0 = (self.0.rotate_left(8) ^ u64::from(b)).wrapping_mul(0x9E37_79B9_7F4A_7C15);
         }
+    }
+
+    fn write_u64(&mut self, k: u64) {
+        self.0 = (k ^ self.0).wrapping_mul(0x9E37_79B9_7F4A_7C15);
+        self.0 ^= self.0 >> 32;
     }
 
     fn write_u128(&mut self, k: u128) {
@@ -415,10 +475,10 @@ impl<'a> Search<'a> {
             None
         };
         if let Some(k) = key {
-            let found = memo.map.get(&k).copied();
-            memo.count(r, found.is_some());
-            if let Some((from, to)) = found {
-                self.replay(r, from as usize..to as usize, out, memo);
+            let found = memo.recall(k);
+            memo.count(r, found);
+            if found {
+                self.replay(r, out, memo);
                 return;
             }
         }
@@ -438,14 +498,15 @@ impl<'a> Search<'a> {
         }
     }
 
-    /// Winds the memo's completions `range` (each `r` faces) onto the current prefix, visiting
-    /// each leaf; consecutive completions share their first faces, which are kept wound.
-    fn replay(&mut self, r: usize, range: Range<usize>, out: &mut Vec<Found>, memo: &mut Memo) {
+    /// Winds the completions in `memo.replay` (each `r` faces) onto the current prefix,
+    /// visiting each leaf; consecutive completions share their first faces, which are kept
+    /// wound.
+    fn replay(&mut self, r: usize, out: &mut Vec<Found>, memo: &mut Memo) {
         let sizes = self.spec.face_set.sizes();
+        let codes = std::mem::take(&mut memo.replay);
         let mut wound = 0;
         let mut previous = 0u32;
-        for j in range {
-            let code = memo.codes[j];
+        for &code in &codes {
             let keep = if wound == 0 {
                 0
             } else {
@@ -467,6 +528,7 @@ impl<'a> Search<'a> {
         for _ in 0..wound {
             self.winder.pop();
         }
+        memo.replay = codes;
     }
 
     fn leaf(&mut self, out: &mut Vec<Found>) {
@@ -576,7 +638,7 @@ pub fn run_units_mapped<R: Send>(
         .num_threads(threads)
         .build()
         .map_err(|e| EnumerateError::Threads(e.to_string()))?;
-    let window = 64 * pool.current_num_threads().max(1);
+    let window = 256 * pool.current_num_threads().max(1);
     for chunk in units.chunks(window) {
         let results: Vec<(u32, Vec<(Found, R)>)> = pool.install(|| {
             chunk

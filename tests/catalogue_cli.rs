@@ -56,15 +56,17 @@ fn rebuilding_part_of_the_shipped_catalogue_gives_identical_bytes() {
 #[test]
 fn killed_runs_resume_to_the_same_bytes() {
     let dir = scratch("resume");
-    // Kill the run at several moments (SIGKILL, no chance to clean up), then finish it.
-    for delay_ms in [150u64, 400, 900, 1500] {
+    // Kill the run at several moments (SIGKILL, no chance to clean up), then finish it. One
+    // thread keeps the whole run near three seconds here, longer than the kills add up to.
+    let mut interrupted = 0;
+    for delay_ms in [150u64, 400, 700, 1000] {
         let mut child = bin()
             .args([
                 "enumerate",
                 "62",
                 "--quiet",
                 "--threads",
-                "2",
+                "1",
                 "--catalogue",
             ])
             .arg(&dir)
@@ -73,9 +75,17 @@ fn killed_runs_resume_to_the_same_bytes() {
             .spawn()
             .expect("binary starts");
         std::thread::sleep(Duration::from_millis(delay_ms));
+        if matches!(child.try_wait(), Ok(None)) {
+            interrupted += 1;
+        }
         let _ = child.kill();
         let _ = child.wait();
     }
+    // A run that had already finished proves nothing about resuming.
+    assert!(
+        interrupted >= 2,
+        "only {interrupted} of 4 runs were still going when killed"
+    );
     let out = enumerate_into(&dir, "62", &[]);
     assert!(
         out.status.success(),
