@@ -1,10 +1,13 @@
 //! Point groups, NMR patterns and descriptor records checked against published isomer data,
 //! over whole enumerations where that is cheap.
 
+mod common;
+
 use cagerank::enumerate::{self, Options, Spec};
 use cagerank::score::symmetry::{symmetry, PointGroup, Symmetry};
 use cagerank::score::{describe, Descriptors};
 use cagerank::spiral::{canonical_spiral, Spiral};
+use common::random_perm;
 use proptest::prelude::*;
 
 fn symmetry_of(spiral: &Spiral) -> Symmetry {
@@ -172,16 +175,7 @@ proptest! {
         let spirals = sample_spirals();
         let spiral = &spirals[choice % spirals.len()];
         let cage = spiral.to_cage();
-        let n = cage.atoms();
-        let mut perm: Vec<u32> = (0..n as u32).collect();
-        let mut state = seed | 1;
-        for i in (1..n).rev() {
-            state ^= state << 13;
-            state ^= state >> 7;
-            state ^= state << 17;
-            perm.swap(i, (state % (i as u64 + 1)) as usize);
-        }
-        let moved = cage.relabelled(&perm);
+        let moved = cage.relabelled(&random_perm(cage.atoms(), seed));
         let before = symmetry(&cage, &canonical_spiral(&cage).unwrap().automorphisms);
         let after = symmetry(&moved, &canonical_spiral(&moved).unwrap().automorphisms);
         prop_assert_eq!(before, after);
