@@ -1,7 +1,8 @@
 //! Enumeration rate: all C60, all C80 and IPR C120 (issue targets in docs/performance.md).
+//! Each run starts with an empty completion store, as a fresh `cagerank` process does.
 
-use cagerank::enumerate::{count, Spec};
-use criterion::{criterion_group, criterion_main, Criterion};
+use cagerank::enumerate::{count, forget_completions, Spec};
+use criterion::{criterion_group, criterion_main, BatchSize, Criterion};
 
 fn bench(c: &mut Criterion) {
     let mut g = c.benchmark_group("enumerate");
@@ -14,7 +15,11 @@ fn bench(c: &mut Criterion) {
         let spec = Spec::fullerene(atoms, ipr).expect("valid size");
         for threads in [1, 2] {
             g.bench_function(format!("{label}, {threads} thread(s)"), |b| {
-                b.iter(|| count(&spec, threads).expect("threads start"))
+                b.iter_batched(
+                    forget_completions,
+                    |()| count(&spec, threads).expect("threads start"),
+                    BatchSize::PerIteration,
+                )
             });
         }
     }

@@ -254,6 +254,20 @@ fn store_shard(tag: u64, key: u128) -> MutexGuard<'static, StoreShard> {
         .unwrap_or_else(|poisoned| poisoned.into_inner())
 }
 
+/// Empties the completion store, so that the next run starts cold as in a fresh process
+/// (benchmarks; results never depend on the store).
+pub fn forget_completions() {
+    if let Some(shards) = STORE.get() {
+        for shard in shards {
+            let mut shard = shard
+                .lock()
+                .unwrap_or_else(|poisoned| poisoned.into_inner());
+            shard.map.clear();
+            shard.codes.clear();
+        }
+    }
+}
+
 /// An injective code of everything in a [`Spec`] that shapes the search.
 fn spec_tag(spec: &Spec) -> u64 {
     let set = match spec.face_set {
