@@ -216,8 +216,8 @@ impl Budget {
 /// bits a face in a `u32`).
 const MEMO_DEPTH: usize = 14;
 
-/// Bounds on the shared store of completions (about 300 MB at most); a shard is emptied when
-/// it reaches its part of either.
+/// Bounds on the shared store of completions (peak process memory up to about 450 MB with the
+/// hash tables' spare capacity); a shard is emptied when it reaches its part of either.
 const STORE_MAX_BOUNDARIES: usize = 1 << 22;
 const STORE_MAX_CODES: usize = 1 << 24;
 const STORE_SHARDS: usize = 64;
@@ -492,7 +492,7 @@ impl<'a> Search<'a> {
     /// boundary was reached; most prefixes near the end of the sequence share a boundary with an
     /// earlier one (about four nodes per distinct boundary for C60), so completions found once
     /// are replayed instead of searched again. Replaying winds the same faces in the same order,
-    /// so the output does not depend on what the memo holds.
+    /// so the output does not depend on what the store holds.
     fn solve(&mut self, used: u32, out: &mut Vec<Found>, memo: &mut Memo) {
         let r = self.total - self.winder.sizes().len();
         if r == 0 {
@@ -633,7 +633,8 @@ pub fn run_unit(spec: &Spec, unit: &Unit) -> Vec<Found> {
 }
 
 /// Streams every isomer in increasing spiral order. Memory stays bounded: units are run in
-/// windows of a few hundred, and each window's results are handed on before the next starts.
+/// windows of 256 per thread, and each window's results are handed on before the next starts;
+/// the completion store has a fixed cap.
 /// `progress(done, total)` is called after each window with counts of this shard's units.
 pub fn enumerate(
     spec: &Spec,
