@@ -291,8 +291,8 @@ struct Memo {
     /// when lookups at the deepest level rarely hit (IPR boundaries seldom repeat).
     depth: usize,
     /// Lookups and hits per number of faces to go.
-    lookups: [u32; MEMO_DEPTH + 1],
-    hits: [u32; MEMO_DEPTH + 1],
+    lookups: [u64; MEMO_DEPTH + 1],
+    hits: [u64; MEMO_DEPTH + 1],
 }
 
 impl Memo {
@@ -313,7 +313,7 @@ impl Memo {
     /// hits save.
     fn count(&mut self, r: usize, hit: bool) {
         self.lookups[r] += 1;
-        self.hits[r] += u32::from(hit);
+        self.hits[r] += u64::from(hit);
         if r == self.depth && self.lookups[r] % 4096 == 0 && self.hits[r] * 5 < self.lookups[r] {
             self.depth -= 1;
         }
