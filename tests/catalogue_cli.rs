@@ -22,6 +22,16 @@ fn shipped(file: &str) -> Vec<u8> {
     std::fs::read(&path).unwrap_or_else(|e| panic!("{}: {e}", path.display()))
 }
 
+/// Fails with the command's own message (from `stream`) if it did not succeed.
+fn assert_success(out: &std::process::Output, stream: &str) {
+    let text = if stream == "stdout" {
+        &out.stdout
+    } else {
+        &out.stderr
+    };
+    assert!(out.status.success(), "{}", String::from_utf8_lossy(text));
+}
+
 fn enumerate_into(dir: &Path, size: &str, extra: &[&str]) -> std::process::Output {
     bin()
         .args(["enumerate", size, "--quiet", "--catalogue"])
@@ -39,11 +49,7 @@ fn rebuilding_part_of_the_shipped_catalogue_gives_identical_bytes() {
         ("84", &["--ipr"][..], "fullerene-c84-ipr.cgr"),
     ] {
         let out = enumerate_into(&dir, size, extra);
-        assert!(
-            out.status.success(),
-            "{}",
-            String::from_utf8_lossy(&out.stderr)
-        );
+        assert_success(&out);
         assert_eq!(
             std::fs::read(dir.join(file)).unwrap(),
             shipped(file),
@@ -87,20 +93,12 @@ fn killed_runs_resume_to_the_same_bytes() {
         "only {interrupted} of 4 runs were still going when killed"
     );
     let out = enumerate_into(&dir, "62", &[]);
-    assert!(
-        out.status.success(),
-        "{}",
-        String::from_utf8_lossy(&out.stderr)
-    );
+    assert_success(&out);
     // The shipped catalogue was built by one uninterrupted run.
     let file = "fullerene-c62-all.cgr";
     assert_eq!(std::fs::read(dir.join(file)).unwrap(), shipped(file));
     let verify = bin().arg("verify").arg(&dir).output().unwrap();
-    assert!(
-        verify.status.success(),
-        "{}",
-        String::from_utf8_lossy(&verify.stdout)
-    );
+    assert_success(&verify);
     let _ = std::fs::remove_dir_all(&dir);
 }
 
@@ -111,11 +109,7 @@ fn shards_merged_through_the_cli_equal_the_single_run() {
     for k in 1..=3 {
         let part = dir.join(format!("part{k}"));
         let out = enumerate_into(&part, "44", &["--shard", &format!("{k}/3")]);
-        assert!(
-            out.status.success(),
-            "{}",
-            String::from_utf8_lossy(&out.stderr)
-        );
+        assert_success(&out);
         parts.push(part);
     }
     let merged = dir.join("merged");
@@ -126,11 +120,7 @@ fn shards_merged_through_the_cli_equal_the_single_run() {
         .arg(&merged)
         .output()
         .unwrap();
-    assert!(
-        out.status.success(),
-        "{}",
-        String::from_utf8_lossy(&out.stderr)
-    );
+    assert_success(&out);
     let file = "fullerene-c44-all.cgr";
     assert_eq!(std::fs::read(merged.join(file)).unwrap(), shipped(file));
     // Two of three shards are refused.
@@ -162,11 +152,7 @@ fn shipped_catalogue_answers_queries() {
         .arg(&dir)
         .output()
         .unwrap();
-    assert!(
-        out.status.success(),
-        "{}",
-        String::from_utf8_lossy(&out.stderr)
-    );
+    assert_success(&out);
     let text = String::from_utf8_lossy(&out.stdout);
     let first: serde_json::Value = serde_json::from_str(text.lines().next().unwrap()).unwrap();
     // The only C60 without adjacent pentagons, Ih (Atlas, from memory), ranks first.
