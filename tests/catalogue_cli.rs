@@ -22,14 +22,14 @@ fn shipped(file: &str) -> Vec<u8> {
     std::fs::read(&path).unwrap_or_else(|e| panic!("{}: {e}", path.display()))
 }
 
-/// Fails with the command's own message (from `stream`) if it did not succeed.
-fn assert_success(out: &std::process::Output, stream: &str) {
-    let text = if stream == "stdout" {
-        &out.stdout
-    } else {
-        &out.stderr
-    };
-    assert!(out.status.success(), "{}", String::from_utf8_lossy(text));
+/// Fails with the command's own output if it did not succeed.
+fn assert_success(out: &std::process::Output) {
+    assert!(
+        out.status.success(),
+        "{}{}",
+        String::from_utf8_lossy(&out.stdout),
+        String::from_utf8_lossy(&out.stderr)
+    );
 }
 
 fn enumerate_into(dir: &Path, size: &str, extra: &[&str]) -> std::process::Output {
