@@ -5,6 +5,7 @@
 //! of the science; the `cagerank` binary only parses arguments and prints. Rankings computed here
 //! are screening heuristics, not predictions of real-world stability or safety.
 
+pub mod automorphism;
 pub mod cage;
 pub mod catalogue;
 pub mod draw;

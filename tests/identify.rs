@@ -2,11 +2,13 @@
 //! hand-made bad files in `tests/data/` with their messages, the command line, and fuzzing of
 //! the readers.
 
+use cagerank::automorphism;
 use cagerank::enumerate::{self, Isomer, Options as RunOptions, Spec};
 use cagerank::export;
 use cagerank::geometry;
 use cagerank::identify::numbers::{position_in_list, Number};
 use cagerank::identify::{self, Format, IdentifyError, Options};
+use cagerank::score::symmetry::{self, PointGroup};
 use proptest::prelude::*;
 use rand::rngs::StdRng;
 use rand::{Rng, SeedableRng};
@@ -293,6 +295,55 @@ fn malformed_files_fail_with_their_line() {
     has(&first_error("garbage.xyz", &o), &["not text"]);
     has(&first_error("v3000.mol", &o), &["V3000", "V2000"]);
     has(&first_error("bad_bond.sdf", &o), &["line 25", "bond"]);
+}
+
+// A fullerene need not have a face spiral: Manolopoulos & Fowler, Chem. Phys. Lett. 204 (1993) 1,
+// found one of 380 atoms with T symmetry. tests/data/c380_no_spiral.xyz is a tetrahedral C380
+// rebuilt from scratch by scripts/spiralless_cage.py, whose own spiral test (independent of
+// cagerank's) finds no start that gives a spiral. Identification must still name what it can.
+#[test]
+fn a_cage_without_a_face_spiral_is_still_described() {
+    let bytes = std::fs::read(data("c380_no_spiral.xyz")).unwrap();
+    let structure = &identify::read(&bytes, None).unwrap()[0];
+    let plain: Coords = structure.atoms.iter().map(|a| a.position).collect();
+    let moved = perturbed(&plain, &mut StdRng::seed_from_u64(380));
+    for coords in [plain, moved] {
+        let again = identify::read(&write_xyz(&[("C380".to_string(), coords)]), None).unwrap();
+        let id = identify::identify(&again[0], &Options::default()).unwrap();
+        assert_eq!(id.cage.atoms(), 380);
+        assert!(
+            id.canonical.is_none(),
+            "a spiral was found for the spiral-less C380"
+        );
+        let sym = symmetry::symmetry(&id.cage, &automorphism::automorphisms(&id.cage));
+        // T, order 12, chiral (Manolopoulos & Fowler 1993); orbits of a group of order 12 have
+        // sizes dividing 12 and sum to the atom count.
+        assert_eq!(sym.point_group, PointGroup::T);
+        assert_eq!((sym.order, sym.chiral), (12, true));
+        assert!(sym.nmr.iter().all(|&(m, _)| 12 % m == 0));
+        assert_eq!(sym.nmr.iter().map(|&(m, c)| m * c).sum::<u32>(), 380);
+    }
+}
+
+#[test]
+fn command_line_reports_a_cage_without_a_face_spiral() {
+    let path = data("c380_no_spiral.xyz");
+    let (code, out, _) = cagerank(&["identify", path.to_str().unwrap()]);
+    assert_eq!(code, 0, "{out}");
+    has(
+        &out,
+        &[
+            "C380 (no face spiral)",
+            "no isomer number",
+            "T, 12 automorphisms, chiral",
+        ],
+    );
+    let (code, out, _) = cagerank(&["identify", path.to_str().unwrap(), "--json"]);
+    assert_eq!(code, 0);
+    let v: serde_json::Value = serde_json::from_str(out.trim()).unwrap();
+    assert_eq!(v["spiral"], serde_json::Value::Null);
+    assert_eq!(v["point_group"], "T");
+    assert_eq!(v["atoms"], 380);
 }
 
 fn cagerank(args: &[&str]) -> (i32, String, String) {

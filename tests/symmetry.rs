@@ -3,6 +3,7 @@
 
 mod common;
 
+use cagerank::automorphism;
 use cagerank::enumerate::{self, Options, Spec};
 use cagerank::score::symmetry::{symmetry, PointGroup, Symmetry};
 use cagerank::score::{describe, Descriptors};
@@ -28,6 +29,38 @@ fn ipr_groups(atoms: u64) -> Vec<PointGroup> {
     )
     .unwrap();
     groups
+}
+
+// Two independent routes to the automorphism group, on every isomer C20-C50: the spiral starts
+// that reproduce the canonical spiral, and Weinberg's dart extension (IEEE Trans. Circuit Theory
+// 13 (1966) 142) in `automorphism`, which needs no spiral.
+#[test]
+fn dart_extension_and_spiral_starts_give_the_same_group() {
+    let key = |a: &cagerank::spiral::Automorphism| (a.atoms.clone(), a.faces.clone(), a.proper);
+    for atoms in (20..=50).step_by(2).filter(|&n| n != 22) {
+        let spec = Spec::fullerene(atoms, false).unwrap();
+        enumerate::enumerate(
+            &spec,
+            &Options::default(),
+            |_, _| {},
+            |iso| {
+                let cage = iso.spiral.to_cage();
+                let mut direct: Vec<_> =
+                    automorphism::automorphisms(&cage).iter().map(key).collect();
+                let canon = canonical_spiral(&cage).expect("enumerated cages have spirals");
+                let mut via_spiral: Vec<_> = canon.automorphisms.iter().map(key).collect();
+                direct.sort();
+                via_spiral.sort();
+                assert_eq!(
+                    direct,
+                    via_spiral,
+                    "C{atoms} {:?}",
+                    iso.spiral.pentagon_indices()
+                );
+            },
+        )
+        .unwrap();
+    }
 }
 
 #[test]

@@ -7,10 +7,11 @@
 use super::output::{write_line, Out};
 use super::show::{nmr_text, symmetry_text};
 use super::CliError;
+use cagerank::automorphism;
 use cagerank::cage::Cage;
 use cagerank::identify::numbers::{self, Number, Numbers};
 use cagerank::identify::{self, Format, Identity, Options, Structure};
-use cagerank::score::{self, huckel, kekule, Descriptors};
+use cagerank::score::{self, huckel, kekule, symmetry, Descriptors};
 use serde_json::{json, Map, Value};
 use std::path::PathBuf;
 
@@ -338,8 +339,10 @@ fn report_spiralless(
     let hmo = huckel::summarize(&huckel::eigenvalues(cage), args.charge.charge)
         .map_err(|e| CliError::usage(e.to_string()))?;
     let kekule = kekule::kekule_count(cage).to_string();
-    let note = "no face spiral: this cage has no canonical spiral, so it has no isomer number \
-                and its symmetry is not computed here (spiral-less fullerenes exist from 380 atoms)";
+    let sym = symmetry::symmetry(cage, &automorphism::automorphisms(cage));
+    let note = "no face spiral: this cage has no canonical spiral, so it has no isomer number; \
+                its symmetry comes from a direct automorphism search (spiral-less fullerenes \
+                exist from 380 atoms)";
     if args.json {
         let mut m = label.json();
         m.insert("ignored_atoms".into(), json!(id.ignored));
@@ -355,6 +358,10 @@ fn report_spiralless(
         m.insert("gap".into(), json!(hmo.gap));
         m.insert("shell".into(), json!(hmo.shell));
         m.insert("kekule".into(), json!(kekule));
+        m.insert("automorphisms".into(), json!(sym.order));
+        m.insert("point_group".into(), json!(sym.point_group));
+        m.insert("chiral".into(), json!(sym.chiral));
+        m.insert("nmr".into(), json!(sym.nmr));
         m.insert("notes".into(), json!([note]));
         return write_line(out, &Value::Object(m).to_string());
     }
@@ -374,6 +381,13 @@ fn report_spiralless(
             hmo.gap,
             hmo.shell.name()
         ),
+        format!(
+            "  symmetry              {}, {} automorphisms, {}",
+            sym.point_group,
+            sym.order,
+            if sym.chiral { "chiral" } else { "achiral" }
+        ),
+        format!("  13C NMR pattern       {}", nmr_text(&sym.nmr)),
         format!("  Kekulé structures     {kekule}"),
         format!("  note: {note}"),
     ];
