@@ -614,6 +614,12 @@ pub fn units(spec: &Spec) -> Vec<Unit> {
     }
 }
 
+/// Levels below a unit's prefix at which the unit is cut into pieces that idle threads can take.
+/// Unit sizes differ by orders of magnitude, and without this one huge unit at the end of a
+/// window leaves the other threads waiting (most of a C100 run was its last window). Pieces are
+/// concatenated in order, so output does not change.
+const PIECE_LEVELS: usize = 3;
+
 /// Every isomer whose canonical spiral starts with the unit's prefix, in spiral order.
 pub fn run_unit(spec: &Spec, unit: &Unit) -> Vec<Found> {
     let mut search = Search::new(spec);
@@ -624,7 +630,26 @@ pub fn run_unit(spec: &Spec, unit: &Unit) -> Vec<Found> {
         }
         used += 6 - s as u32;
     }
+    // Only cut where the pieces stay above the completion store's levels and the leaves.
+    if spec.faces() <= unit.prefix.len() + MEMO_DEPTH + PIECE_LEVELS {
+        return run_piece(spec, &search.winder);
+    }
+    let mut pieces = vec![search.winder.clone()];
+    for _ in 0..PIECE_LEVELS {
+        pieces = search.next_level(&pieces);
+    }
+    let found: Vec<Vec<Found>> = pieces.par_iter().map(|w| run_piece(spec, w)).collect();
+    found.into_iter().flatten().collect()
+}
+
+/// Every canonical sequence below the prefix wound in `prefix`, on the calling thread.
+fn run_piece(spec: &Spec, prefix: &Winder) -> Vec<Found> {
+    let mut search = Search::new(spec);
+    search.winder.clone_from(prefix);
+    let used = search.used_budget();
     let mut out = Vec::new();
+    // No parallel work may start inside this borrow: a thread waiting on it could be handed
+    // another piece and borrow the memo twice.
     MEMO.with_borrow_mut(|memo| {
         memo.prepare(spec);
         search.descend(used, &mut out, memo);
