@@ -24,6 +24,7 @@ confirmed by exhaustive generation, Brinkmann, Goedgebeur & McKay, Inform. Proce
   next-neighbour (2.46 Å) springs; good enough for bond perception, not a chemical geometry.
 
     python3 scripts/spiralless_cage.py 380 --out tests/data/c380_no_spiral.xyz
+    python3 scripts/spiralless_cage.py 100 --pentagon-starts --out tests/data/c100_no_pentagon_start.xyz
 """
 import argparse
 import itertools
@@ -330,8 +331,9 @@ def faces_of(g):
     return faces
 
 
-def has_spiral(g, faces):
-    """True if some start gives a face spiral (definition in the module docstring)."""
+def has_spiral(g, faces, first=None):
+    """True if some start gives a face spiral (definition in the module docstring); with
+    `first`, only starts on a face of that size count."""
     edge_faces = {}
     for f, cyc in enumerate(faces):
         for i in range(len(cyc)):
@@ -343,6 +345,8 @@ def has_spiral(g, faces):
         adj[b].add(a)
     nf = len(faces)
     for f1 in range(nf):
+        if first is not None and len(faces[f1]) != first:
+            continue
         for f2 in adj[f1]:
             for f3 in adj[f1] & adj[f2]:
                 order, listed = [f1, f2, f3], {f1, f2, f3}
@@ -395,6 +399,8 @@ def main():
     ap = argparse.ArgumentParser(description=__doc__.split("\n")[0])
     ap.add_argument("atoms", type=int)
     ap.add_argument("--out", help="write the first spiral-less cage found as XYZ")
+    ap.add_argument("--pentagon-starts", action="store_true",
+                    help="look for cages with no spiral starting on a pentagon instead")
     args = ap.parse_args()
     quarter = args.atoms // 4
     found = []
@@ -421,7 +427,7 @@ def main():
             sizes = sorted(len(f) for f in faces)
             if sizes.count(5) != 12 or any(s not in (5, 6) for s in sizes):
                 continue
-            spiral = has_spiral(g, faces)
+            spiral = has_spiral(g, faces, 5 if args.pentagon_starts else None)
             print(f"u={u} w={w}: C{args.atoms}, spiral {'yes' if spiral else 'NO'}", file=sys.stderr)
             if not spiral:
                 found.append(g)
@@ -429,7 +435,8 @@ def main():
     for g in found:
         if not any(nx.is_isomorphic(g, h) for h in distinct):
             distinct.append(g)
-    print(f"{len(found)} parameter pairs without a face spiral, {len(distinct)} distinct cage(s)",
+    kind = "spiral starting on a pentagon" if args.pentagon_starts else "face spiral"
+    print(f"{len(found)} parameter pairs without a {kind}, {len(distinct)} distinct cage(s)",
           file=sys.stderr)
     found = distinct
     if args.out and found:
@@ -437,7 +444,7 @@ def main():
         x = coordinates(g)
         with open(args.out, "w") as fh:
             fh.write(f"{g.number_of_nodes()}\n")
-            fh.write(f"C{args.atoms} tetrahedral fullerene without a face spiral, built by "
+            fh.write(f"C{args.atoms} tetrahedral fullerene without a {kind}, built by "
                      "scripts/spiralless_cage.py (topological start geometry, not optimised)\n")
             for row in x:
                 fh.write(f"C {row[0]:12.6f} {row[1]:12.6f} {row[2]:12.6f}\n")
