@@ -21,6 +21,7 @@ fn info(atoms: u32) -> RunInfo {
         unit_depth: 0,
         shard: None,
         made_by: catalogue::made_by(),
+        all_starts: false,
     }
 }
 

@@ -32,6 +32,7 @@ fn run_info(atoms: u32, ipr: bool, units: u32, shard: Option<ShardId>) -> RunInf
         unit_depth: 3,
         shard,
         made_by: catalogue::made_by(),
+        all_starts: false,
     }
 }
 
@@ -249,6 +250,25 @@ fn truncated_files_are_errors_never_partial_answers() {
         assert!(err.to_string().contains("short.cgr"), "{err}");
         assert!(err.is_data_error(), "{err}");
     }
+    let _ = fs::remove_dir_all(&dir);
+}
+
+#[test]
+fn a_run_with_hexagon_starts_does_not_mix_with_one_without() {
+    // The unit lists differ, so resuming one with the other's settings would mix units.
+    let dir = temp_dir("starts");
+    let info = run_info(100, false, 4, None);
+    full_run(&dir, info.clone());
+    let other = RunInfo {
+        all_starts: true,
+        ..info
+    };
+    let msg = match Writer::open(&dir, other.clone()) {
+        Ok(_) => panic!("a run with other settings was accepted"),
+        Err(e) => e.to_string(),
+    };
+    assert!(msg.contains("already holds a different run"), "{msg}");
+    assert!(other.label().contains("all starts"));
     let _ = fs::remove_dir_all(&dir);
 }
 

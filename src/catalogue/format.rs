@@ -19,8 +19,9 @@ use std::path::{Path, PathBuf};
 pub const MAGIC: [u8; 8] = *b"\x89CGRCAT\n";
 /// Last bytes of every complete data file.
 pub const END_MAGIC: [u8; 8] = *b"CGRCEND\n";
-/// Layout version of the file itself.
-pub const FORMAT_VERSION: u16 = 1;
+/// Layout version of the file itself. Version 2 added `RunInfo::all_starts`; version 1 files
+/// are still read (as runs without hexagon starts).
+pub const FORMAT_VERSION: u16 = 2;
 /// Version of the record fields and their meaning; bump when a descriptor changes.
 pub const SCHEMA_VERSION: u16 = 1;
 /// Records per chunk: small enough to skip finely, large enough to compress well
@@ -380,7 +381,7 @@ fn read_header(path: &Path, file: &mut File, len: u64) -> Result<(RunInfo, u64),
     read_exact_at(file, 0, &mut prelude).map_err(|e| corrupt(e.to_string()))?;
     let format = u16::from_le_bytes([prelude[8], prelude[9]]);
     let schema = u16::from_le_bytes([prelude[10], prelude[11]]);
-    if format != FORMAT_VERSION || schema != SCHEMA_VERSION {
+    if !(1..=FORMAT_VERSION).contains(&format) || schema != SCHEMA_VERSION {
         return Err(CatalogueError::Version {
             path: path.to_path_buf(),
             format,
@@ -400,9 +401,39 @@ fn read_header(path: &Path, file: &mut File, len: u64) -> Result<(RunInfo, u64),
     if crc32(covered) != u32::from_le_bytes([crc[0], crc[1], crc[2], crc[3]]) {
         return Err(corrupt("checksum mismatch".into()));
     }
-    let info: RunInfo =
-        postcard::from_bytes(&covered[PRELUDE..]).map_err(|e| corrupt(format!("postcard: {e}")))?;
+    let info = decode_run_info(format, &covered[PRELUDE..])
+        .map_err(|e| corrupt(format!("postcard: {e}")))?;
     Ok((info, end))
+}
+
+/// `RunInfo` as format version 1 wrote it (no `all_starts`).
+#[derive(Serialize, Deserialize)]
+struct RunInfoV1 {
+    face_set: crate::cage::FaceSet,
+    atoms: u32,
+    ipr: bool,
+    unit_count: u32,
+    unit_depth: u32,
+    shard: Option<super::ShardId>,
+    made_by: String,
+}
+
+/// Decodes the header's run info as written by file format `format`.
+fn decode_run_info(format: u16, bytes: &[u8]) -> Result<RunInfo, postcard::Error> {
+    if format >= 2 {
+        return postcard::from_bytes(bytes);
+    }
+    let v1: RunInfoV1 = postcard::from_bytes(bytes)?;
+    Ok(RunInfo {
+        face_set: v1.face_set,
+        atoms: v1.atoms,
+        ipr: v1.ipr,
+        unit_count: v1.unit_count,
+        unit_depth: v1.unit_depth,
+        shard: v1.shard,
+        made_by: v1.made_by,
+        all_starts: false,
+    })
 }
 
 fn read_index(path: &Path, file: &mut File, len: u64) -> Result<(Index, u64), CatalogueError> {
@@ -452,4 +483,37 @@ fn check_layout(index: &Index, header_end: u64, index_start: u64) -> Result<(), 
         ));
     }
     Ok(())
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::cage::FaceSet;
+
+    // Files written before `all_starts` existed (format 1) still read, as pentagon-start runs.
+    #[test]
+    fn format_1_headers_read_without_hexagon_starts() {
+        let old = RunInfoV1 {
+            face_set: FaceSet::Fullerene,
+            atoms: 60,
+            ipr: false,
+            unit_count: 2000,
+            unit_depth: 9,
+            shard: None,
+            made_by: "cagerank 0.1.0".into(),
+        };
+        let bytes = postcard::to_stdvec(&old).expect("encodes");
+        let info = decode_run_info(1, &bytes).expect("decodes");
+        assert_eq!(
+            (info.atoms, info.unit_count, info.all_starts),
+            (60, 2000, false)
+        );
+        let new = RunInfo {
+            all_starts: true,
+            ..info
+        };
+        let again = decode_run_info(2, &postcard::to_stdvec(&new).expect("encodes"));
+        assert_eq!(again.expect("decodes"), new);
+        assert!(decode_run_info(2, &bytes).is_err());
+    }
 }

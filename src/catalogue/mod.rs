@@ -83,6 +83,9 @@ pub struct RunInfo {
     pub shard: Option<ShardId>,
     /// Program and version that computed the records, e.g. "cagerank 0.1.0".
     pub made_by: String,
+    /// True if spirals were also started on hexagons (`--all-starts`): the unit list differs,
+    /// and such a list holds the cages with no spiral starting on a pentagon.
+    pub all_starts: bool,
 }
 
 impl RunInfo {
@@ -102,7 +105,8 @@ impl RunInfo {
     /// Human name, e.g. "C100 (IPR, fullerene)".
     pub fn label(&self) -> String {
         let list = if self.ipr { "IPR" } else { "all" };
-        format!("C{} ({list}, {})", self.atoms, self.face_set)
+        let starts = if self.all_starts { ", all starts" } else { "" };
+        format!("C{} ({list}, {}{starts})", self.atoms, self.face_set)
     }
 }
 

@@ -69,7 +69,7 @@ fn spec_for(args: &Args, atoms: u64) -> Result<Spec, CliError> {
         );
     } else if !spec.starts_verified() {
         eprintln!(
-            "cagerank: warning: spirals starting on a pentagon are checked complete only up to C{} (IPR C{}); all C100 misses 1 of 285,914 cages this way. Add --all-starts (much slower) for a complete list of C{atoms}",
+            "cagerank: warning: spirals starting on a pentagon are checked complete only up to C{} (IPR C{}); all C100 misses 1 of 285,914 cages this way (a Td cage whose spirals all start on hexagons). Add --all-starts (much slower) for a complete list of C{atoms}",
             enumerate::LARGEST_CHECKED_COMPLETE,
             enumerate::LARGEST_CHECKED_IPR
         );
@@ -168,6 +168,7 @@ fn write_catalogue(out: &mut Out, args: &Args, spec: &Spec, dir: &Path) -> Resul
             count: s.count,
         }),
         made_by: made_by(),
+        all_starts: spec.all_starts,
     };
     let mut writer = Writer::open(&dir, info).map_err(catalogue_error)?;
     let pending: std::collections::BTreeSet<u32> = writer.pending_units().into_iter().collect();

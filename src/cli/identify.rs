@@ -12,6 +12,7 @@ use cagerank::cage::Cage;
 use cagerank::identify::numbers::{self, Number, Numbers};
 use cagerank::identify::{self, Format, Identity, Options, Structure};
 use cagerank::score::{self, huckel, kekule, symmetry, Descriptors};
+use cagerank::spiral::Spiral;
 use serde_json::{json, Map, Value};
 use std::path::PathBuf;
 
@@ -216,7 +217,7 @@ fn report(out: &mut Out, label: &Label, id: &Identity, args: &Args) -> Result<()
             m.extend(fields);
         }
         let notes = numbers
-            .map(|n| number_notes(&n, id.cage.atoms()))
+            .map(|n| number_notes(&n, id.cage.atoms(), &canonical.spiral))
             .unwrap_or_default();
         m.insert("notes".into(), json!(notes));
         return write_line(out, &Value::Object(m).to_string());
@@ -224,7 +225,7 @@ fn report(out: &mut Out, label: &Label, id: &Identity, args: &Args) -> Result<()
     let lines = text_block(
         label,
         id,
-        &canonical.spiral.to_string(),
+        &canonical.spiral,
         numbers,
         &d,
         args.charge.charge,
@@ -251,8 +252,15 @@ fn id_text(atoms: usize, numbers: Option<Numbers>) -> String {
 }
 
 /// Why a number is missing and how to get it.
-fn number_notes(n: &Numbers, atoms: usize) -> Vec<String> {
+fn number_notes(n: &Numbers, atoms: usize, spiral: &Spiral) -> Vec<String> {
     let mut notes = Vec::new();
+    if spiral.sizes().first() != Some(&5) && n.complete.listed().is_none() {
+        notes.push(format!(
+            "this cage has no spiral starting on a pentagon: lists built without --all-starts \
+             (the default) leave it out, and its number follows every pentagon-start C{atoms} \
+             cage; build the catalogue with --all-starts to number it"
+        ));
+    }
     for (list, number) in [("complete-list", n.complete), ("IPR-list", n.ipr)] {
         if let Number::NotComputed { limit } = number {
             notes.push(format!(
@@ -267,7 +275,7 @@ fn number_notes(n: &Numbers, atoms: usize) -> Vec<String> {
 fn text_block(
     label: &Label,
     id: &Identity,
-    spiral: &str,
+    spiral: &Spiral,
     numbers: Option<Numbers>,
     d: &Descriptors,
     charge: i32,
@@ -304,7 +312,7 @@ fn text_block(
     ];
     if let Some(n) = numbers {
         lines.extend(
-            number_notes(&n, atoms)
+            number_notes(&n, atoms, spiral)
                 .into_iter()
                 .map(|s| format!("  note: {s}")),
         );
