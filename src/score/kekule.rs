@@ -8,9 +8,11 @@
 //! from the Kahn–Lovász bound, so the count is exact at any size. This module leaves bond orders
 //! (which reuse the orientation) to [`super::bonds`].
 
+pub use super::pfaffian::is_prime_u64;
+use super::pfaffian::{abs_from_residues, pfaffian_mod, primes_below_2_62, SkewMatrix, Workspace};
 use crate::cage::{Cage, EdgeId};
 use num_bigint::BigUint;
-use num_traits::{One, Zero};
+use num_traits::One;
 use std::collections::VecDeque;
 
 /// Edge orientation of a Pfaffian (Kasteleyn) orientation, aligned with [`Cage::edges`]: `true`
@@ -95,35 +97,43 @@ fn count_along(cage: &Cage, f: usize, forward: &[bool], skip: usize) -> usize {
 
 /// The number of Kekulé structures (perfect matchings) of the cage, exactly.
 pub fn kekule_count(cage: &Cage) -> BigUint {
-    let primes = primes_for(cage.atoms());
-    kekule_count_with_primes(cage, &primes)
+    abs_pfaffian(&kasteleyn_matrix(cage, None), &primes_for(cage.atoms()))
 }
 
-/// The count computed with the given primes (each an odd prime below 2^31, distinct), whose
-/// product must exceed twice the true count; exposed so tests can vary the prime set.
+/// The count computed with the given primes (each an odd prime below 2^62, distinct), whose
+/// product must exceed twice the true count; exposed so tests can vary the prime set, down to
+/// primes so small that pivots vanish modulo them.
+///
+/// # Panics
+/// If a modulus is not an odd prime below 2^62 (checked by Miller–Rabin, [`is_prime_u64`]).
 pub fn kekule_count_with_primes(cage: &Cage, primes: &[u64]) -> BigUint {
-    abs_pfaffian(&kasteleyn_matrix(cage), cage.atoms(), primes)
+    for &p in primes {
+        assert!(
+            p % 2 == 1 && p < 1 << 62 && is_prime_u64(p),
+            "{p} is not an odd prime below 2^62"
+        );
+    }
+    abs_pfaffian(&kasteleyn_matrix(cage, None), primes)
 }
 
 /// The number of Kekulé structures in which `edge` is a double bond, exactly: |Pf| of the
 /// Kasteleyn matrix without the edge's two atoms (the numerator of its Pauling bond order).
 pub fn kekule_count_containing(cage: &Cage, edge: EdgeId) -> BigUint {
-    let n = cage.atoms();
-    let [u, v] = cage.edges()[edge.index()].map(|x| x as usize);
-    let full = kasteleyn_matrix(cage);
-    let keep: Vec<usize> = (0..n).filter(|&i| i != u && i != v).collect();
-    let minor: Vec<i8> = keep
-        .iter()
-        .flat_map(|&i| keep.iter().map(move |&j| (i, j)))
-        .map(|(i, j)| full[i * n + j])
-        .collect();
-    abs_pfaffian(&minor, n - 2, &primes_for(n))
+    let [u, v] = cage.edges()[edge.index()];
+    abs_pfaffian(
+        &kasteleyn_matrix(cage, Some([u, v])),
+        &primes_for(cage.atoms()),
+    )
 }
 
-/// |Pf| of a dense skew matrix of -1/0/+1 entries, from its residues modulo `primes`.
-fn abs_pfaffian(matrix: &[i8], n: usize, primes: &[u64]) -> BigUint {
-    let residues: Vec<u64> = primes.iter().map(|&p| pfaffian_mod(matrix, n, p)).collect();
-    symmetric_crt(&residues, primes)
+/// |Pf| of a skew matrix from its residues modulo `primes` (whose product must exceed twice it).
+fn abs_pfaffian(matrix: &SkewMatrix, primes: &[u64]) -> BigUint {
+    let mut workspace = Workspace::default();
+    let residues: Vec<u64> = primes
+        .iter()
+        .map(|&p| pfaffian_mod(matrix, p, &mut workspace))
+        .collect();
+    abs_from_residues(&residues, primes)
 }
 
 /// Rigorous upper bound on the number of perfect matchings of a graph with n vertices of degree
@@ -133,206 +143,61 @@ pub fn matching_bound(atoms: usize) -> BigUint {
     BigUint::from(6u32).pow(atoms.div_ceil(6) as u32)
 }
 
-/// Enough of the largest primes below 2^31 that their product exceeds 2 * [`matching_bound`] + 1,
-/// so the signed Pfaffian is recovered from its residues.
+/// Enough of the largest primes below 2^62 that their product exceeds 2 * [`matching_bound`] + 1,
+/// so the signed Pfaffian is recovered from its residues (one prime up to 138 atoms, four for
+/// C540). Primes this wide halve the number of eliminations against 31-bit ones, and
+/// Montgomery multiplication keeps each step as cheap.
 pub fn primes_for(atoms: usize) -> Vec<u64> {
     let need = matching_bound(atoms) * 2u32 + 1u32;
+    // Each prime exceeds 2^61, so ceil(bits / 61) of them always suffice.
+    let primes = primes_below_2_62(need.bits().div_ceil(61) as usize);
     let mut product = BigUint::one();
-    let mut primes = Vec::new();
-    let mut candidate = (1u64 << 31) - 1;
+    let mut used = 0;
     while product <= need {
-        if is_prime_u32(candidate) {
-            primes.push(candidate);
-            product *= candidate;
-        }
-        candidate -= 2;
+        product *= primes[used];
+        used += 1;
     }
-    primes
+    primes[..used].to_vec()
 }
 
-/// Deterministic Miller–Rabin for n < 3,215,031,751 with bases 2, 3, 5, 7 (Jaeschke, Math.
-/// Comp. 61 (1993) 915).
+/// Deterministic primality for n < 2^32 (kept for callers of the former 31-bit prime API; the
+/// test is [`is_prime_u64`]'s).
 pub fn is_prime_u32(n: u64) -> bool {
-    if n < 2 {
-        return false;
-    }
-    for p in [2u64, 3, 5, 7] {
-        if n % p == 0 {
-            return n == p;
-        }
-    }
-    let (mut d, mut s) = (n - 1, 0);
-    while d % 2 == 0 {
-        d /= 2;
-        s += 1;
-    }
-    [2u64, 3, 5, 7].iter().all(|&a| {
-        let mut x = pow_mod(a, d, n);
-        if x == 1 || x == n - 1 {
-            return true;
-        }
-        for _ in 1..s {
-            x = x * x % n;
-            if x == n - 1 {
-                return true;
-            }
-        }
-        false
-    })
+    is_prime_u64(n)
 }
 
-fn pow_mod(mut b: u64, mut e: u64, m: u64) -> u64 {
-    let mut r = 1 % m;
-    b %= m;
-    while e > 0 {
-        if e & 1 == 1 {
-            r = r * b % m;
-        }
-        b = b * b % m;
-        e >>= 1;
-    }
-    r
-}
-
-/// The Kasteleyn matrix as a dense row-major n x n array of -1/0/+1.
-fn kasteleyn_matrix(cage: &Cage) -> Vec<i8> {
-    let n = cage.atoms();
-    let mut k = vec![0i8; n * n];
+/// The Kasteleyn matrix (entries ±1 on the bonds), optionally without the two atoms of one bond
+/// and with the remaining atoms renumbered in order: the minor whose Pfaffian counts the Kekulé
+/// structures through that bond.
+fn kasteleyn_matrix(cage: &Cage, without: Option<[u32; 2]>) -> SkewMatrix {
     let forward = kasteleyn_orientation(cage);
-    for (e, &[u, v]) in cage.edges().iter().enumerate() {
-        let s = if forward[e] { 1 } else { -1 };
-        k[u as usize * n + v as usize] = s;
-        k[v as usize * n + u as usize] = -s;
-    }
-    k
-}
-
-/// Barrett reduction for a fixed modulus p < 2^31: reduces x < 2^62 without a division.
-#[derive(Clone, Copy)]
-struct Modulus {
-    p: u64,
-    m: u128,
-}
-
-impl Modulus {
-    fn new(p: u64) -> Modulus {
-        Modulus {
-            p,
-            m: (1u128 << 64) / p as u128,
+    let n = cage.atoms();
+    let index: Vec<Option<u32>> = match without {
+        None => (0..n as u32).map(Some).collect(),
+        Some(gone) => {
+            let mut next = 0;
+            (0..n as u32)
+                .map(|v| {
+                    (!gone.contains(&v)).then(|| {
+                        next += 1;
+                        next - 1
+                    })
+                })
+                .collect()
         }
-    }
-
-    #[inline(always)]
-    fn reduce(self, x: u64) -> u64 {
-        let q = ((x as u128 * self.m) >> 64) as u64;
-        let r = x - q * self.p;
-        if r >= self.p {
-            r - self.p
-        } else {
-            r
-        }
-    }
-
-    fn inverse(self, a: u64) -> u64 {
-        pow_mod(a, self.p - 2, self.p)
-    }
-}
-
-/// Pf(K) mod p by skew-symmetric elimination: pivot on entry (k, k+1) (swapping a column in if
-/// needed, which flips the sign), then clear row k by the congruence col_i -= t_i col_(k+1),
-/// row_i -= t_i row_(k+1), which keeps skew-symmetry and the Pfaffian; Pf = prod of pivots.
-/// Only the upper triangle is kept up to date.
-fn pfaffian_mod(base: &[i8], n: usize, p: u64) -> u64 {
-    let md = Modulus::new(p);
-    let mut a: Vec<u64> = base
+    };
+    let entries = cage
+        .edges()
         .iter()
-        .map(|&x| if x < 0 { p - 1 } else { x as u64 })
+        .zip(&forward)
+        .filter_map(|(&[u, v], &f)| {
+            let (a, b) = (index[u as usize]?, index[v as usize]?);
+            Some((a, b, if f { 1 } else { -1 }))
+        })
         .collect();
-    let mut pf = 1u64;
-    let mut k = 0;
-    while k + 1 < n {
-        let Some(j) = (k + 1..n).find(|&j| a[k * n + j] != 0) else {
-            return 0;
-        };
-        if j != k + 1 {
-            swap_index(&mut a, n, k + 1, j, p);
-            pf = p - pf;
-        }
-        let pivot = a[k * n + k + 1];
-        pf = md.reduce(pf * pivot);
-        let inv = md.inverse(pivot);
-        eliminate(&mut a, n, k, inv, md);
-        k += 2;
-    }
-    pf % p
-}
-
-/// Swaps rows and columns r and s of the skew matrix, of which only the upper triangle is
-/// stored up to date (entries below the diagonal are read as the negated mirror entry).
-fn swap_index(a: &mut [u64], n: usize, r: usize, s: usize, p: u64) {
-    let get = |a: &[u64], x: usize, y: usize| match x.cmp(&y) {
-        std::cmp::Ordering::Less => a[x * n + y],
-        std::cmp::Ordering::Greater => (p - a[y * n + x]) % p,
-        std::cmp::Ordering::Equal => 0,
-    };
-    let old_r: Vec<u64> = (0..n).map(|m| get(a, r, m)).collect();
-    let old_s: Vec<u64> = (0..n).map(|m| get(a, s, m)).collect();
-    let mut set = |x: usize, y: usize, v: u64| {
-        if x < y {
-            a[x * n + y] = v;
-        } else if x > y {
-            a[y * n + x] = (p - v) % p;
-        }
-    };
-    for m in (0..n).filter(|&m| m != r && m != s) {
-        set(r, m, old_s[m]);
-        set(s, m, old_r[m]);
-    }
-    set(r, s, old_s[r]);
-}
-
-/// One elimination step at pivot (k, k+1): for i > k+1 with t_i = a[k][i] / a[k][k+1] != 0,
-/// a[i][j] += -t_i a[k+1][j] + t_j a[k+1][i] for k+1 < i < j (upper triangle only).
-fn eliminate(a: &mut [u64], n: usize, k: usize, inv: u64, md: Modulus) {
-    let p = md.p;
-    let k1 = k + 1;
-    let t: Vec<u64> = (k1 + 1..n).map(|i| md.reduce(a[k * n + i] * inv)).collect();
-    let row1: Vec<u64> = a[k1 * n..(k1 + 1) * n].to_vec();
-    for i in k1 + 1..n {
-        let ti = t[i - k1 - 1];
-        let ri = row1[i];
-        if ti == 0 && ri == 0 {
-            continue;
-        }
-        let (neg_ti, row) = (p - ti, &mut a[i * n..(i + 1) * n]);
-        for j in i + 1..n {
-            let tj = t[j - k1 - 1];
-            // a[i][j] - t_i a[k+1][j] + t_j a[k+1][i], with a[k+1][i] = row1[i].
-            let x = md.reduce(neg_ti * row1[j] + tj * ri);
-            let y = row[j] + x;
-            row[j] = if y >= p { y - p } else { y };
-        }
-    }
-}
-
-/// Recovers the signed value from residues (|value| < product / 2) and returns its absolute
-/// value, by Garner's mixed-radix method.
-fn symmetric_crt(residues: &[u64], primes: &[u64]) -> BigUint {
-    let mut value = BigUint::zero();
-    let mut modulus = BigUint::one();
-    for (&r, &p) in residues.iter().zip(primes) {
-        let current = (&value % p).to_u64_digits().first().copied().unwrap_or(0);
-        let m_mod_p = (&modulus % p).to_u64_digits().first().copied().unwrap_or(0);
-        let diff = (r + p - current) % p;
-        let t = diff * pow_mod(m_mod_p, p - 2, p) % p;
-        value += &modulus * t;
-        modulus *= p;
-    }
-    let half = &modulus >> 1;
-    if value > half {
-        modulus - value
-    } else {
-        value
+    SkewMatrix {
+        n: n - 2 * usize::from(without.is_some()),
+        entries,
     }
 }
 
