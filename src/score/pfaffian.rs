@@ -68,10 +68,11 @@ impl Montgomery {
         let m = lo.wrapping_mul(self.p_inv);
         let mp_hi = ((m as u128 * self.p as u128) >> 64) as u64;
         // t - m p is a multiple of 2^64 (its low word is exactly lo - lo); hi < p and mp_hi < p.
-        if hi >= mp_hi {
-            hi - mp_hi
+        let (r, borrow) = hi.overflowing_sub(mp_hi);
+        if borrow {
+            r.wrapping_add(self.p)
         } else {
-            hi + self.p - mp_hi
+            r
         }
     }
 
@@ -90,10 +91,11 @@ impl Montgomery {
     #[inline(always)]
     fn add(self, a: u64, b: u64) -> u64 {
         let s = a + b;
-        if s >= self.p {
-            s - self.p
-        } else {
+        let (t, borrow) = s.overflowing_sub(self.p);
+        if borrow {
             s
+        } else {
+            t
         }
     }
 
