@@ -56,8 +56,16 @@ impl Montgomery {
         for _ in 0..5 {
             p_inv = p_inv.wrapping_mul(2u64.wrapping_sub(p.wrapping_mul(p_inv)));
         }
-        let one = ((1u128 << 64) % p as u128) as u64;
-        let r2 = ((one as u128 * one as u128) % p as u128) as u64;
+        // 2^64 mod p, then doubled 64 times: no 128-bit division.
+        let one = (u64::MAX % p + 1) % p;
+        let r2 = (0..64).fold(one, |x, _| {
+            let y = x << 1;
+            if y >= p {
+                y - p
+            } else {
+                y
+            }
+        });
         Montgomery { p, p_inv, r2, one }
     }
 
@@ -67,13 +75,11 @@ impl Montgomery {
         let (lo, hi) = (t as u64, (t >> 64) as u64);
         let m = lo.wrapping_mul(self.p_inv);
         let mp_hi = ((m as u128 * self.p as u128) >> 64) as u64;
-        // t - m p is a multiple of 2^64 (its low word is exactly lo - lo); hi < p and mp_hi < p.
-        let (r, borrow) = hi.overflowing_sub(mp_hi);
-        if borrow {
-            r.wrapping_add(self.p)
-        } else {
-            r
-        }
+        // t - m p is a multiple of 2^64 (its low word is exactly lo - lo); hi < p and mp_hi < p,
+        // so the difference lies in (-p, p) and its sign bit says whether to add p back. Masks,
+        // not branches: the sign is data a branch predictor cannot learn.
+        let r = hi.wrapping_sub(mp_hi);
+        r.wrapping_add(self.p & sign_mask(r))
     }
 
     #[inline(always)]
@@ -90,22 +96,13 @@ impl Montgomery {
 
     #[inline(always)]
     fn add(self, a: u64, b: u64) -> u64 {
-        let s = a + b;
-        let (t, borrow) = s.overflowing_sub(self.p);
-        if borrow {
-            s
-        } else {
-            t
-        }
+        let t = (a + b).wrapping_sub(self.p);
+        t.wrapping_add(self.p & sign_mask(t))
     }
 
     #[inline(always)]
     fn neg(self, a: u64) -> u64 {
-        if a == 0 {
-            0
-        } else {
-            self.p - a
-        }
+        (self.p - a) & u64::from(a != 0).wrapping_neg()
     }
 
     fn enter(self, x: i64) -> u64 {
@@ -126,6 +123,13 @@ impl Montgomery {
         let plain = inverse_mod(self.leave(a), self.p);
         self.mul(plain, self.r2)
     }
+}
+
+/// All ones if x, read as a signed 64-bit integer, is negative; else zero. Values here stay
+/// below 2^63 in magnitude, so this is the borrow of the subtraction that produced x.
+#[inline(always)]
+fn sign_mask(x: u64) -> u64 {
+    ((x as i64) >> 63) as u64
 }
 
 /// a^-1 mod p for an odd prime p and 0 < a < p, by the binary extended Euclidean algorithm
@@ -162,25 +166,32 @@ fn inverse_mod(a: u64, p: u64) -> u64 {
     }
 }
 
-/// Reusable buffers for [`pfaffian_mod`], so the residues for several primes allocate once.
+/// `Workspace::pos` of a vertex that is not a neighbour of the current pivot pair.
+const ABSENT: u32 = u32::MAX;
+/// `Workspace::pos` of the two pivot vertices themselves.
+const PIVOT: u32 = u32::MAX - 1;
+
+/// Reusable buffers for [`pfaffian_mod`], so repeated residues do not allocate.
 #[derive(Default)]
 pub(crate) struct Workspace {
     /// Current nonzero entries of each row as (column, value in Montgomery form); an entry that
     /// becomes zero is dropped, so the pattern is exactly the nonzero pattern mod p.
     rows: Vec<Vec<(u32, u64)>>,
     alive: Vec<bool>,
-    /// `mark[c] == tick_pivot`: c is a neighbour of the current pivot pair.
-    mark: Vec<u64>,
-    /// `seen[c] == tick_row`: column c already exists in the row being updated.
-    seen: Vec<u64>,
-    /// Row i of the pivot pair divided by the pivot, and row j, on the pivot's neighbours.
+    /// Position of each vertex in `neighbours` during a pivot step, or [`ABSENT`] / [`PIVOT`].
+    pos: Vec<u32>,
+    /// The pivot pair's other neighbours N, with u_b = A[i][N_b] / a and w_b = A[j][N_b].
+    neighbours: Vec<u32>,
     u: Vec<u64>,
     w: Vec<u64>,
-    neighbours: Vec<u32>,
+    /// The Schur complement's increments on N x N, row-major (skew: only a < b computed).
+    delta: Vec<u64>,
     /// Vertices by current degree (lazy: stale entries are skipped when popped).
     buckets: Vec<Vec<u32>>,
     /// The elimination sequence i1 j1 i2 j2 ...: the permutation whose sign Pf picks up.
     order: Vec<u32>,
+    /// Schur-complement entries computed in the last run (the work, up to a constant).
+    pub(crate) updates: usize,
 }
 
 /// Pf(A) mod p for a prime p in 3..2^62, by sparse skew-symmetric (2 x 2 block) elimination.
@@ -190,10 +201,12 @@ pub(crate) struct Workspace {
 /// (ties: smallest index); with a = A[i][j], u_c = A[i][c] / a and w_c = A[j][c], replace A by
 /// its Schur complement S[r][c] = A[r][c] + w_r u_c - u_r w_c on the other vertices. With the
 /// rows reordered to i1 j1 i2 j2 ... (permutation sigma), the block elimination gives
-/// Pf(A) = sign(sigma) * a_1 a_2 ... a_(n/2). Only rows adjacent to i or j change. A vertex
-/// whose row is zero makes A singular: Pf = 0.
+/// Pf(A) = sign(sigma) * a_1 a_2 ... a_(n/2). Only rows of neighbours of i or j change, and
+/// they change only in columns of such neighbours. A vertex whose row is zero makes A
+/// singular: Pf = 0.
 pub(crate) fn pfaffian_mod(matrix: &SkewMatrix, p: u64, ws: &mut Workspace) -> u64 {
     let n = matrix.n;
+    ws.updates = 0;
     if n % 2 == 1 {
         return 0;
     }
@@ -201,13 +214,14 @@ pub(crate) fn pfaffian_mod(matrix: &SkewMatrix, p: u64, ws: &mut Workspace) -> u
     let Workspace {
         rows,
         alive,
-        mark,
-        seen,
+        pos,
+        neighbours,
         u,
         w,
-        neighbours,
+        delta,
         buckets,
         order,
+        updates,
     } = ws;
     rows.iter_mut().for_each(Vec::clear);
     rows.resize_with(n, Vec::new);
@@ -220,10 +234,8 @@ pub(crate) fn pfaffian_mod(matrix: &SkewMatrix, p: u64, ws: &mut Workspace) -> u
     }
     alive.clear();
     alive.resize(n, true);
-    for buf in [&mut *mark, &mut *seen, &mut *u, &mut *w] {
-        buf.clear();
-        buf.resize(n, 0);
-    }
+    pos.clear();
+    pos.resize(n, ABSENT);
     buckets.iter_mut().for_each(Vec::clear);
     buckets.resize_with(n.max(1), Vec::new);
     // Pushed in reverse so that equal degrees pop smallest index first at the start.
@@ -231,7 +243,6 @@ pub(crate) fn pfaffian_mod(matrix: &SkewMatrix, p: u64, ws: &mut Workspace) -> u
         buckets[rows[v].len()].push(v as u32);
     }
     order.clear();
-    let (mut tick_pivot, mut tick_row) = (0u64, 0u64);
     let mut min_degree = 0;
     let mut pf = md.one;
     while order.len() < n {
@@ -261,71 +272,95 @@ pub(crate) fn pfaffian_mod(matrix: &SkewMatrix, p: u64, ws: &mut Workspace) -> u
         alive[j] = false;
         pf = md.mul(pf, a);
 
-        // The pivot pair's other neighbours, with u_c = A[i][c] / a and w_c = A[j][c].
-        tick_pivot += 1;
+        // N, u and w.
         neighbours.clear();
+        u.clear();
+        w.clear();
         for &(c, x) in &rows[i] {
             if c as usize != j {
-                mark[c as usize] = tick_pivot;
+                pos[c as usize] = neighbours.len() as u32;
                 neighbours.push(c);
-                u[c as usize] = x;
-                w[c as usize] = 0;
+                u.push(x);
+                w.push(0);
             }
         }
         for &(c, x) in &rows[j] {
             if c as usize != i {
-                if mark[c as usize] != tick_pivot {
-                    mark[c as usize] = tick_pivot;
-                    neighbours.push(c);
-                    u[c as usize] = 0;
+                match pos[c as usize] {
+                    ABSENT => {
+                        pos[c as usize] = neighbours.len() as u32;
+                        neighbours.push(c);
+                        u.push(0);
+                        w.push(x);
+                    }
+                    b => w[b as usize] = x,
                 }
-                w[c as usize] = x;
             }
         }
-        let inv = md.inverse(a);
-        for &c in neighbours.iter() {
-            u[c as usize] = md.mul(u[c as usize], inv);
-        }
+        pos[i] = PIVOT;
+        pos[j] = PIVOT;
         rows[i].clear();
         rows[j].clear();
+        let inv = md.inverse(a);
+        u.iter_mut().for_each(|x| *x = md.mul(*x, inv));
 
-        for &r in neighbours.iter() {
+        // Row x of `delta`: S - A on N, that is w_x u_y - u_x w_y; skew, so only y > x is
+        // computed.
+        let m = neighbours.len();
+        if delta.len() < m * m {
+            delta.resize(m * m, 0);
+        }
+        for x in 0..m {
+            let neg_ux = md.p - u[x];
+            delta[x * m + x] = 0;
+            for y in x + 1..m {
+                let d = md.mul_add(w[x], u[y], neg_ux, w[y]);
+                delta[x * m + y] = d;
+                delta[y * m + x] = md.neg(d);
+            }
+        }
+
+        for (x, &r) in neighbours.iter().enumerate() {
             let r = r as usize;
-            let (wr, neg_ur) = (w[r], md.neg(u[r]));
-            tick_row += 1;
+            let increments = &mut delta[x * m..(x + 1) * m];
             let row = &mut rows[r];
             let mut k = 0;
             while k < row.len() {
-                let (c, x) = row[k];
-                let c = c as usize;
-                if c == i || c == j {
-                    row.swap_remove(k);
-                    continue;
-                }
-                if mark[c] == tick_pivot {
-                    seen[c] = tick_row;
-                    let y = md.add(x, md.mul_add(wr, u[c], neg_ur, w[c]));
-                    if y == 0 {
+                let (c, value) = row[k];
+                match pos[c as usize] {
+                    ABSENT => k += 1,
+                    PIVOT => {
                         row.swap_remove(k);
-                        continue;
                     }
-                    row[k].1 = y;
-                }
-                k += 1;
-            }
-            for &c in neighbours.iter() {
-                let cu = c as usize;
-                if cu != r && seen[cu] != tick_row {
-                    let y = md.mul_add(wr, u[cu], neg_ur, w[cu]);
-                    if y != 0 {
-                        row.push((c, y));
+                    b => {
+                        let y = md.add(value, increments[b as usize]);
+                        // Used up: the loop below then skips the columns the row had.
+                        increments[b as usize] = 0;
+                        if y == 0 {
+                            row.swap_remove(k);
+                        } else {
+                            row[k].1 = y;
+                            k += 1;
+                        }
                     }
                 }
             }
+            // Columns of N the row lacked get the increment alone (fill), if it is nonzero.
+            for (&c, &d) in neighbours.iter().zip(increments.iter()) {
+                if d != 0 {
+                    row.push((c, d));
+                }
+            }
+            *updates += m;
             let degree = row.len();
             buckets[degree].push(r as u32);
             min_degree = min_degree.min(degree);
         }
+        for &c in neighbours.iter() {
+            pos[c as usize] = ABSENT;
+        }
+        pos[i] = ABSENT;
+        pos[j] = ABSENT;
     }
     if permutation_is_odd(order) {
         pf = md.neg(pf);
