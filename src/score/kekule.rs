@@ -144,6 +144,10 @@ pub fn kekule_count_containing(cage: &Cage, edge: EdgeId) -> BigUint {
     )
 }
 
+/// Largest matrix whose elimination buffers a thread keeps for the next call (a few hundred
+/// kilobytes); bigger ones are rare and give theirs back.
+const KEEP_WORKSPACE_UP_TO: usize = 4096;
+
 /// |Pf| of a skew matrix from its residues modulo `primes` (whose product must exceed twice it).
 fn abs_pfaffian(matrix: &SkewMatrix, primes: &[u64]) -> BigUint {
     thread_local! {
@@ -158,10 +162,14 @@ fn abs_pfaffian(matrix: &SkewMatrix, primes: &[u64]) -> BigUint {
             Ok(ws) => ws,
             Err(_) => &mut fresh,
         };
-        primes
+        let residues = primes
             .iter()
             .map(|&p| pfaffian_mod(matrix, p, workspace))
-            .collect()
+            .collect();
+        if matrix.n > KEEP_WORKSPACE_UP_TO {
+            *workspace = Workspace::default();
+        }
+        residues
     });
     abs_from_residues(&residues, primes)
 }
@@ -199,7 +207,7 @@ pub fn is_prime_u32(n: u64) -> bool {
 /// The Kasteleyn matrix (entries ±1 on the bonds), optionally without the two atoms of one bond
 /// and with the remaining atoms renumbered in order: the minor whose Pfaffian counts the Kekulé
 /// structures through that bond.
-fn kasteleyn_matrix(cage: &Cage, without: Option<[u32; 2]>) -> SkewMatrix {
+pub(crate) fn kasteleyn_matrix(cage: &Cage, without: Option<[u32; 2]>) -> SkewMatrix {
     let forward = kasteleyn_orientation(cage);
     let n = cage.atoms();
     let index: Vec<Option<u32>> = match without {
