@@ -3,10 +3,11 @@
 //! A plane graph has a Pfaffian orientation: orient the edges so that every bounded face has an
 //! odd number of edges directed clockwise (Kasteleyn, in *Graph Theory and Theoretical Physics*,
 //! 1967). The skew-symmetric signed adjacency matrix K of such an orientation has |Pf(K)| equal to
-//! the number of perfect matchings. We compute Pf(K) exactly by elimination modulo several 31-bit
-//! primes and the Chinese remainder theorem, never in floating point; the number of primes comes
-//! from the Kahn–Lovász bound, so the count is exact at any size. This module leaves bond orders
-//! (which reuse the orientation) to [`super::bonds`].
+//! the number of perfect matchings. We compute Pf(K) exactly by sparse elimination modulo primes
+//! just below 2^62 and the Chinese remainder theorem, never in floating point (the elimination
+//! is in [`super::pfaffian`]); the number of primes comes from the Kahn–Lovász bound, so the
+//! count is exact at any size. This module leaves bond orders (which reuse the orientation) to
+//! [`super::bonds`].
 
 pub use super::pfaffian::is_prime_u64;
 use super::pfaffian::{abs_from_residues, pfaffian_mod, primes_below_2_62, SkewMatrix, Workspace};
@@ -198,8 +199,8 @@ pub fn primes_for(atoms: usize) -> Vec<u64> {
     primes[..used].to_vec()
 }
 
-/// Deterministic primality for n < 2^32 (kept for callers of the former 31-bit prime API; the
-/// test is [`is_prime_u64`]'s).
+/// Deterministic primality test, kept from the former 31-bit prime API; it is now
+/// [`is_prime_u64`], exact for every 64-bit n.
 pub fn is_prime_u32(n: u64) -> bool {
     is_prime_u64(n)
 }

@@ -7,8 +7,9 @@
 //! greedily by degree (the minimum-degree form of Markowitz's rule, Markowitz, Management Sci.
 //! 3 (1957) 255, from memory). Fullerenes are planar, and planar graphs have elimination
 //! orders with O(n log n) fill (Lipton, Rose & Tarjan, SIAM J. Numer. Anal. 16 (1979) 346,
-//! from memory); minimum degree is a heuristic, not that bound, but on cages it stays close to
-//! it (see the fill test below).
+//! from memory); minimum degree is a heuristic without that guarantee, but on leapfrog cages
+//! from C60 to C1620 its work grows like n^1.6-1.7 against dense elimination's n^3 (see the
+//! work test below), which is C100 in ~20 µs and C540 in ~1.5 ms.
 //!
 //! Why exact: the elimination runs modulo primes p < 2^62 in Montgomery form (Montgomery, Math.
 //! Comp. 44 (1985) 519), never in floating point, and the signed Pfaffian is rebuilt from its
