@@ -124,13 +124,15 @@ pub fn kekule_count(cage: &Cage) -> BigUint {
 /// primes so small that pivots vanish modulo them.
 ///
 /// # Panics
-/// If a modulus is not an odd prime below 2^62 (checked by Miller–Rabin, [`is_prime_u64`]).
+/// If a modulus is not an odd prime below 2^62 (checked by Miller–Rabin, [`is_prime_u64`]) or
+/// appears twice.
 pub fn kekule_count_with_primes(cage: &Cage, primes: &[u64]) -> BigUint {
-    for &p in primes {
+    for (k, &p) in primes.iter().enumerate() {
         assert!(
             p % 2 == 1 && p < 1 << 62 && is_prime_u64(p),
             "{p} is not an odd prime below 2^62"
         );
+        assert!(!primes[..k].contains(&p), "the prime {p} appears twice");
     }
     abs_pfaffian(&kasteleyn_matrix(cage, None), primes)
 }
