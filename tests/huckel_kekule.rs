@@ -14,6 +14,7 @@ use cagerank::score::kekule::{
 use cagerank::score::Shell;
 use cagerank::spiral::Spiral;
 use num_bigint::BigUint;
+use proptest::prelude::*;
 
 fn c60() -> Cage {
     // Atlas spiral of C60-Ih (memory, Fowler & Manolopoulos 1995; domain notes section 2).
@@ -195,11 +196,18 @@ fn matchings_through_each_c60_bond_give_pauling_numerators() {
 
 #[test]
 fn large_leapfrog_count_is_stable_across_prime_sets_and_sums_over_a_vertex() {
-    // C540 = leapfrog of leapfrog of C60: 540 atoms, a count of ~10^90, far beyond u64.
+    // C540 = leapfrog of leapfrog of C60: 540 atoms, a count of about 1.3 x 10^37 (124 bits),
+    // far beyond u64.
     let cage = leapfrog(&leapfrog(&c60()));
     assert_eq!(cage.atoms(), 540);
     let count = kekule_count(&cage);
     assert!(count.bits() > 64, "the bigint path is exercised");
+    // The value the previous implementation (dense elimination modulo 31-bit primes, commit
+    // 6ef47e5, no code shared with the sparse one) gives.
+    let dense: BigUint = "13166974581235534638114625028096000000"
+        .parse()
+        .expect("decimal");
+    assert_eq!(count, dense);
     // Property: a second, disjoint prime set with the bound doubled gives the same integer.
     let default = primes_for(cage.atoms());
     let more = primes_for(2 * cage.atoms());
@@ -236,10 +244,86 @@ fn leapfrog_of_dodecahedron_is_c60() {
 
 #[test]
 fn too_few_primes_are_caught_by_a_different_answer() {
-    // Guards the bound's role: one prime (product ~2^31) cannot hold C540's ~300-bit count.
+    // Guards the bound's role: one prime (product ~2^62) cannot hold C540's 124-bit count.
     let cage = leapfrog(&leapfrog(&c60()));
     let one = kekule_count_with_primes(&cage, &primes_for(cage.atoms())[..1]);
     assert_ne!(one, kekule_count(&cage));
+}
+
+/// The odd primes from 3 up, as many as make the product exceed 2 * matching_bound + 1 (so the
+/// counts are still determined), for a cage with `atoms` atoms.
+fn small_primes_for(atoms: usize) -> Vec<u64> {
+    let need = matching_bound(atoms) * 2u32 + 1u32;
+    let mut product = BigUint::from(1u32);
+    let mut primes = Vec::new();
+    for p in (3u64..)
+        .step_by(2)
+        .filter(|&p| (3..p).step_by(2).all(|d| p % d != 0))
+    {
+        if product > need {
+            break;
+        }
+        product *= p;
+        primes.push(p);
+    }
+    primes
+}
+
+#[test]
+fn kekule_counts_from_tiny_primes_match_brute_force_up_to_c40_and_the_c60_c70_values() {
+    // Independent: the backtracking counter above, and Klein et al. (C60) / the domain notes
+    // (C70). Modulo 3, 5, 7, ... pivots vanish and the sparse elimination takes a different
+    // pivot order for each prime; the Chinese remainder step only recovers the count if every
+    // residue carries the same (exactly tracked) sign.
+    for cage in isomers_up_to(40) {
+        let primes = small_primes_for(cage.atoms());
+        assert!(primes.len() >= 5 && primes[0] == 3);
+        assert_eq!(
+            kekule_count_with_primes(&cage, &primes),
+            BigUint::from(brute_count(&cage))
+        );
+    }
+    for (cage, count) in [(c60(), 12500u32), (c70(), 52168)] {
+        let primes = small_primes_for(cage.atoms());
+        assert_eq!(
+            kekule_count_with_primes(&cage, &primes),
+            BigUint::from(count)
+        );
+    }
+}
+
+#[test]
+fn kekule_counts_do_not_depend_on_thread_count() {
+    // Determinism: each thread keeps its own elimination buffers; results must not depend on
+    // which thread computed what, or on what a buffer held before.
+    use rayon::prelude::*;
+    let mut cages = isomers_up_to(44);
+    cages.push(leapfrog(&leapfrog(&c60())));
+    let serial: Vec<BigUint> = cages.iter().map(kekule_count).collect();
+    let parallel: Vec<BigUint> = cages.par_iter().map(kekule_count).collect();
+    assert_eq!(serial, parallel);
+    let again: Vec<BigUint> = cages.iter().rev().map(kekule_count).collect();
+    assert!(again.iter().rev().eq(serial.iter()));
+}
+
+proptest! {
+    #![proptest_config(ProptestConfig::with_cases(64))]
+    #[test]
+    fn c60_counts_survive_any_relabelling(
+        perm in Just((0..60u32).collect::<Vec<u32>>()).prop_shuffle(),
+        edge in 0usize..90,
+    ) {
+        // Klein et al., JACS 108 (1986) 1301: 12500, and 5500 / 3500 through 6:6 / 5:6 bonds
+        // (domain notes section 3); matchings are a graph invariant, while the labelling moves
+        // the Kasteleyn orientation and every pivot choice of the sparse elimination.
+        let cage = c60().relabelled(&perm);
+        prop_assert_eq!(kekule_count(&cage), BigUint::from(12500u32));
+        let want = if is_hexagon_edge(&cage, edge) { 5500u32 } else { 3500 };
+        prop_assert_eq!(
+            kekule_count_containing(&cage, EdgeId(edge as u32)),
+            BigUint::from(want)
+        );
+    }
 }
 
 #[test]

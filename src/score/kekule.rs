@@ -3,14 +3,18 @@
 //! A plane graph has a Pfaffian orientation: orient the edges so that every bounded face has an
 //! odd number of edges directed clockwise (Kasteleyn, in *Graph Theory and Theoretical Physics*,
 //! 1967). The skew-symmetric signed adjacency matrix K of such an orientation has |Pf(K)| equal to
-//! the number of perfect matchings. We compute Pf(K) exactly by elimination modulo several 31-bit
-//! primes and the Chinese remainder theorem, never in floating point; the number of primes comes
-//! from the Kahn–Lovász bound, so the count is exact at any size. This module leaves bond orders
-//! (which reuse the orientation) to [`super::bonds`].
+//! the number of perfect matchings. We compute Pf(K) exactly by sparse elimination modulo primes
+//! just below 2^62 and the Chinese remainder theorem, never in floating point (the elimination
+//! is in [`super::pfaffian`]); the number of primes comes from the Kahn–Lovász bound, so the
+//! count is exact at any size. This module leaves bond orders (which reuse the orientation) to
+//! [`super::bonds`].
 
+pub use super::pfaffian::is_prime_u64;
+use super::pfaffian::{abs_from_residues, pfaffian_mod, primes_below_2_62, SkewMatrix, Workspace};
 use crate::cage::{Cage, EdgeId};
 use num_bigint::BigUint;
-use num_traits::{One, Zero};
+use num_traits::One;
+use std::cell::RefCell;
 use std::collections::VecDeque;
 
 /// Edge orientation of a Pfaffian (Kasteleyn) orientation, aligned with [`Cage::edges`]: `true`
@@ -24,27 +28,72 @@ use std::collections::VecDeque;
 /// drawing with face 0 outside, or its mirror; both are Pfaffian because every alternating cycle
 /// has even length.
 pub fn kasteleyn_orientation(cage: &Cage) -> Vec<bool> {
-    let (order, parent_edge) = dual_tree(cage);
-    let edges = cage.edges();
-    let mut forward = vec![true; edges.len()];
-    let mut fixed: Vec<bool> = vec![true; edges.len()];
-    for &e in parent_edge.iter().flatten() {
-        fixed[e] = false;
-    }
+    let sides = FaceSides::new(cage);
+    let (order, parent_edge) = dual_tree(cage, &sides);
+    let mut forward = vec![true; cage.edges().len()];
     for &f in order.iter().rev() {
-        let Some(e) = parent_edge[f] else { continue };
-        let along = count_along(cage, f, &forward, e);
+        let Some(parent) = parent_edge[f] else {
+            continue;
+        };
+        let face = &cage.faces()[f];
+        let (mut along, mut parent_forward_is_along) = (0, false);
+        for (i, &e) in sides.of(f).iter().enumerate() {
+            let low_to_high = face[i] < face[(i + 1) % face.len()];
+            if e as usize == parent {
+                parent_forward_is_along = low_to_high;
+            } else if forward[e as usize] == low_to_high {
+                along += 1;
+            }
+        }
         // The parent edge must make the total odd.
-        let want_along = along % 2 == 0;
-        forward[e] = edge_along_face(cage, f, e) == want_along;
-        fixed[e] = true;
+        forward[parent] = parent_forward_is_along == (along % 2 == 0);
     }
-    debug_assert!(fixed.iter().all(|&x| x));
     forward
 }
 
+/// The edge index of every side of every face: side i of face f runs from faces[f][i] to
+/// faces[f][i+1]. Built from the rotation system in O(edges), where a binary search per side
+/// cost a tenth of a C100 count.
+struct FaceSides {
+    offset: Vec<usize>,
+    edge: Vec<u32>,
+}
+
+impl FaceSides {
+    fn new(cage: &Cage) -> FaceSides {
+        let rotation = cage.rotation();
+        let slot = |a: u32, b: u32| {
+            let k = rotation[a as usize]
+                .iter()
+                .position(|&x| x == b)
+                .expect("invariant: edges and face sides join rotation neighbours");
+            3 * a as usize + k
+        };
+        // dart_edge[3v + k]: the edge from v to its k-th neighbour.
+        let mut dart_edge = vec![0u32; 3 * cage.atoms()];
+        for (e, &[u, v]) in cage.edges().iter().enumerate() {
+            dart_edge[slot(u, v)] = e as u32;
+            dart_edge[slot(v, u)] = e as u32;
+        }
+        let mut offset = Vec::with_capacity(cage.face_count() + 1);
+        let mut edge = Vec::with_capacity(2 * cage.edges().len());
+        offset.push(0);
+        for face in cage.faces() {
+            for (i, &a) in face.iter().enumerate() {
+                edge.push(dart_edge[slot(a, face[(i + 1) % face.len()])]);
+            }
+            offset.push(edge.len());
+        }
+        FaceSides { offset, edge }
+    }
+
+    fn of(&self, f: usize) -> &[u32] {
+        &self.edge[self.offset[f]..self.offset[f + 1]]
+    }
+}
+
 /// BFS over the dual from face 0: visiting order and, for each face, the edge to its parent.
-fn dual_tree(cage: &Cage) -> (Vec<usize>, Vec<Option<usize>>) {
+fn dual_tree(cage: &Cage, sides: &FaceSides) -> (Vec<usize>, Vec<Option<usize>>) {
     let faces = cage.faces();
     let mut parent_edge = vec![None; faces.len()];
     let mut seen = vec![false; faces.len()];
@@ -57,7 +106,7 @@ fn dual_tree(cage: &Cage) -> (Vec<usize>, Vec<Option<usize>>) {
             let g = g as usize;
             if !seen[g] {
                 seen[g] = true;
-                parent_edge[g] = Some(face_edge(cage, f, i));
+                parent_edge[g] = Some(sides.of(f)[i] as usize);
                 queue.push_back(g);
             }
         }
@@ -65,65 +114,67 @@ fn dual_tree(cage: &Cage) -> (Vec<usize>, Vec<Option<usize>>) {
     (order, parent_edge)
 }
 
-/// Edge index of the i-th side of face f (from faces[f][i] to faces[f][i+1]).
-fn face_edge(cage: &Cage, f: usize, i: usize) -> usize {
-    let face = &cage.faces()[f];
-    let (a, b) = (face[i], face[(i + 1) % face.len()]);
-    let key = if a < b { [a, b] } else { [b, a] };
-    cage.edges()
-        .binary_search(&key)
-        .expect("invariant: face sides are edges")
-}
-
-/// Whether the low → high direction of edge e runs along face f's traversal.
-fn edge_along_face(cage: &Cage, f: usize, e: usize) -> bool {
-    let face = &cage.faces()[f];
-    let [lo, hi] = cage.edges()[e];
-    (0..face.len()).any(|i| face[i] == lo && face[(i + 1) % face.len()] == hi)
-}
-
-/// Number of edges of face f, other than `skip`, directed along the face's traversal.
-fn count_along(cage: &Cage, f: usize, forward: &[bool], skip: usize) -> usize {
-    let face = &cage.faces()[f];
-    (0..face.len())
-        .filter(|&i| {
-            let e = face_edge(cage, f, i);
-            e != skip && forward[e] == (face[i] < face[(i + 1) % face.len()])
-        })
-        .count()
-}
-
 /// The number of Kekulé structures (perfect matchings) of the cage, exactly.
 pub fn kekule_count(cage: &Cage) -> BigUint {
-    let primes = primes_for(cage.atoms());
-    kekule_count_with_primes(cage, &primes)
+    abs_pfaffian(&kasteleyn_matrix(cage, None), &primes_for(cage.atoms()))
 }
 
-/// The count computed with the given primes (each an odd prime below 2^31, distinct), whose
-/// product must exceed twice the true count; exposed so tests can vary the prime set.
+/// The count computed with the given primes (each an odd prime below 2^62, distinct), whose
+/// product must exceed twice the true count; exposed so tests can vary the prime set, down to
+/// primes so small that pivots vanish modulo them.
+///
+/// # Panics
+/// If a modulus is not an odd prime below 2^62 (checked by Miller–Rabin, [`is_prime_u64`]) or
+/// appears twice.
 pub fn kekule_count_with_primes(cage: &Cage, primes: &[u64]) -> BigUint {
-    abs_pfaffian(&kasteleyn_matrix(cage), cage.atoms(), primes)
+    for (k, &p) in primes.iter().enumerate() {
+        assert!(
+            p % 2 == 1 && p < 1 << 62 && is_prime_u64(p),
+            "{p} is not an odd prime below 2^62"
+        );
+        assert!(!primes[..k].contains(&p), "the prime {p} appears twice");
+    }
+    abs_pfaffian(&kasteleyn_matrix(cage, None), primes)
 }
 
 /// The number of Kekulé structures in which `edge` is a double bond, exactly: |Pf| of the
 /// Kasteleyn matrix without the edge's two atoms (the numerator of its Pauling bond order).
 pub fn kekule_count_containing(cage: &Cage, edge: EdgeId) -> BigUint {
-    let n = cage.atoms();
-    let [u, v] = cage.edges()[edge.index()].map(|x| x as usize);
-    let full = kasteleyn_matrix(cage);
-    let keep: Vec<usize> = (0..n).filter(|&i| i != u && i != v).collect();
-    let minor: Vec<i8> = keep
-        .iter()
-        .flat_map(|&i| keep.iter().map(move |&j| (i, j)))
-        .map(|(i, j)| full[i * n + j])
-        .collect();
-    abs_pfaffian(&minor, n - 2, &primes_for(n))
+    let [u, v] = cage.edges()[edge.index()];
+    abs_pfaffian(
+        &kasteleyn_matrix(cage, Some([u, v])),
+        &primes_for(cage.atoms()),
+    )
 }
 
-/// |Pf| of a dense skew matrix of -1/0/+1 entries, from its residues modulo `primes`.
-fn abs_pfaffian(matrix: &[i8], n: usize, primes: &[u64]) -> BigUint {
-    let residues: Vec<u64> = primes.iter().map(|&p| pfaffian_mod(matrix, n, p)).collect();
-    symmetric_crt(&residues, primes)
+/// Largest matrix whose elimination buffers a thread keeps for the next call (a few hundred
+/// kilobytes); bigger ones are rare and give theirs back.
+const KEEP_WORKSPACE_UP_TO: usize = 4096;
+
+/// |Pf| of a skew matrix from its residues modulo `primes` (whose product must exceed twice it).
+fn abs_pfaffian(matrix: &SkewMatrix, primes: &[u64]) -> BigUint {
+    thread_local! {
+        // One per thread, kept between calls: a C100 count would otherwise spend a fifth of its
+        // time allocating rows. Results never depend on what the buffers held before.
+        static WORKSPACE: RefCell<Workspace> = RefCell::new(Workspace::default());
+    }
+    let residues: Vec<u64> = WORKSPACE.with(|cell| {
+        let mut fresh = Workspace::default();
+        let mut borrowed = cell.try_borrow_mut();
+        let workspace = match borrowed.as_deref_mut() {
+            Ok(ws) => ws,
+            Err(_) => &mut fresh,
+        };
+        let residues = primes
+            .iter()
+            .map(|&p| pfaffian_mod(matrix, p, workspace))
+            .collect();
+        if matrix.n > KEEP_WORKSPACE_UP_TO {
+            *workspace = Workspace::default();
+        }
+        residues
+    });
+    abs_from_residues(&residues, primes)
 }
 
 /// Rigorous upper bound on the number of perfect matchings of a graph with n vertices of degree
@@ -133,206 +184,61 @@ pub fn matching_bound(atoms: usize) -> BigUint {
     BigUint::from(6u32).pow(atoms.div_ceil(6) as u32)
 }
 
-/// Enough of the largest primes below 2^31 that their product exceeds 2 * [`matching_bound`] + 1,
-/// so the signed Pfaffian is recovered from its residues.
+/// Enough of the largest primes below 2^62 that their product exceeds 2 * [`matching_bound`] + 1,
+/// so the signed Pfaffian is recovered from its residues (one prime up to 138 atoms, four for
+/// C540). Primes this wide halve the number of eliminations against 31-bit ones, and
+/// Montgomery multiplication keeps each step as cheap.
 pub fn primes_for(atoms: usize) -> Vec<u64> {
     let need = matching_bound(atoms) * 2u32 + 1u32;
+    // Each prime exceeds 2^61, so ceil(bits / 61) of them always suffice.
+    let primes = primes_below_2_62(need.bits().div_ceil(61) as usize);
     let mut product = BigUint::one();
-    let mut primes = Vec::new();
-    let mut candidate = (1u64 << 31) - 1;
+    let mut used = 0;
     while product <= need {
-        if is_prime_u32(candidate) {
-            primes.push(candidate);
-            product *= candidate;
-        }
-        candidate -= 2;
+        product *= primes[used];
+        used += 1;
     }
-    primes
+    primes[..used].to_vec()
 }
 
-/// Deterministic Miller–Rabin for n < 3,215,031,751 with bases 2, 3, 5, 7 (Jaeschke, Math.
-/// Comp. 61 (1993) 915).
+/// Deterministic primality test, kept from the former 31-bit prime API; it is now
+/// [`is_prime_u64`], exact for every 64-bit n.
 pub fn is_prime_u32(n: u64) -> bool {
-    if n < 2 {
-        return false;
-    }
-    for p in [2u64, 3, 5, 7] {
-        if n % p == 0 {
-            return n == p;
-        }
-    }
-    let (mut d, mut s) = (n - 1, 0);
-    while d % 2 == 0 {
-        d /= 2;
-        s += 1;
-    }
-    [2u64, 3, 5, 7].iter().all(|&a| {
-        let mut x = pow_mod(a, d, n);
-        if x == 1 || x == n - 1 {
-            return true;
-        }
-        for _ in 1..s {
-            x = x * x % n;
-            if x == n - 1 {
-                return true;
-            }
-        }
-        false
-    })
+    is_prime_u64(n)
 }
 
-fn pow_mod(mut b: u64, mut e: u64, m: u64) -> u64 {
-    let mut r = 1 % m;
-    b %= m;
-    while e > 0 {
-        if e & 1 == 1 {
-            r = r * b % m;
-        }
-        b = b * b % m;
-        e >>= 1;
-    }
-    r
-}
-
-/// The Kasteleyn matrix as a dense row-major n x n array of -1/0/+1.
-fn kasteleyn_matrix(cage: &Cage) -> Vec<i8> {
-    let n = cage.atoms();
-    let mut k = vec![0i8; n * n];
+/// The Kasteleyn matrix (entries ±1 on the bonds), optionally without the two atoms of one bond
+/// and with the remaining atoms renumbered in order: the minor whose Pfaffian counts the Kekulé
+/// structures through that bond.
+pub(crate) fn kasteleyn_matrix(cage: &Cage, without: Option<[u32; 2]>) -> SkewMatrix {
     let forward = kasteleyn_orientation(cage);
-    for (e, &[u, v]) in cage.edges().iter().enumerate() {
-        let s = if forward[e] { 1 } else { -1 };
-        k[u as usize * n + v as usize] = s;
-        k[v as usize * n + u as usize] = -s;
-    }
-    k
-}
-
-/// Barrett reduction for a fixed modulus p < 2^31: reduces x < 2^62 without a division.
-#[derive(Clone, Copy)]
-struct Modulus {
-    p: u64,
-    m: u128,
-}
-
-impl Modulus {
-    fn new(p: u64) -> Modulus {
-        Modulus {
-            p,
-            m: (1u128 << 64) / p as u128,
+    let n = cage.atoms();
+    let index: Vec<Option<u32>> = match without {
+        None => (0..n as u32).map(Some).collect(),
+        Some(gone) => {
+            let mut next = 0;
+            (0..n as u32)
+                .map(|v| {
+                    (!gone.contains(&v)).then(|| {
+                        next += 1;
+                        next - 1
+                    })
+                })
+                .collect()
         }
-    }
-
-    #[inline(always)]
-    fn reduce(self, x: u64) -> u64 {
-        let q = ((x as u128 * self.m) >> 64) as u64;
-        let r = x - q * self.p;
-        if r >= self.p {
-            r - self.p
-        } else {
-            r
-        }
-    }
-
-    fn inverse(self, a: u64) -> u64 {
-        pow_mod(a, self.p - 2, self.p)
-    }
-}
-
-/// Pf(K) mod p by skew-symmetric elimination: pivot on entry (k, k+1) (swapping a column in if
-/// needed, which flips the sign), then clear row k by the congruence col_i -= t_i col_(k+1),
-/// row_i -= t_i row_(k+1), which keeps skew-symmetry and the Pfaffian; Pf = prod of pivots.
-/// Only the upper triangle is kept up to date.
-fn pfaffian_mod(base: &[i8], n: usize, p: u64) -> u64 {
-    let md = Modulus::new(p);
-    let mut a: Vec<u64> = base
+    };
+    let entries = cage
+        .edges()
         .iter()
-        .map(|&x| if x < 0 { p - 1 } else { x as u64 })
+        .zip(&forward)
+        .filter_map(|(&[u, v], &f)| {
+            let (a, b) = (index[u as usize]?, index[v as usize]?);
+            Some((a, b, if f { 1 } else { -1 }))
+        })
         .collect();
-    let mut pf = 1u64;
-    let mut k = 0;
-    while k + 1 < n {
-        let Some(j) = (k + 1..n).find(|&j| a[k * n + j] != 0) else {
-            return 0;
-        };
-        if j != k + 1 {
-            swap_index(&mut a, n, k + 1, j, p);
-            pf = p - pf;
-        }
-        let pivot = a[k * n + k + 1];
-        pf = md.reduce(pf * pivot);
-        let inv = md.inverse(pivot);
-        eliminate(&mut a, n, k, inv, md);
-        k += 2;
-    }
-    pf % p
-}
-
-/// Swaps rows and columns r and s of the skew matrix, of which only the upper triangle is
-/// stored up to date (entries below the diagonal are read as the negated mirror entry).
-fn swap_index(a: &mut [u64], n: usize, r: usize, s: usize, p: u64) {
-    let get = |a: &[u64], x: usize, y: usize| match x.cmp(&y) {
-        std::cmp::Ordering::Less => a[x * n + y],
-        std::cmp::Ordering::Greater => (p - a[y * n + x]) % p,
-        std::cmp::Ordering::Equal => 0,
-    };
-    let old_r: Vec<u64> = (0..n).map(|m| get(a, r, m)).collect();
-    let old_s: Vec<u64> = (0..n).map(|m| get(a, s, m)).collect();
-    let mut set = |x: usize, y: usize, v: u64| {
-        if x < y {
-            a[x * n + y] = v;
-        } else if x > y {
-            a[y * n + x] = (p - v) % p;
-        }
-    };
-    for m in (0..n).filter(|&m| m != r && m != s) {
-        set(r, m, old_s[m]);
-        set(s, m, old_r[m]);
-    }
-    set(r, s, old_s[r]);
-}
-
-/// One elimination step at pivot (k, k+1): for i > k+1 with t_i = a[k][i] / a[k][k+1] != 0,
-/// a[i][j] += -t_i a[k+1][j] + t_j a[k+1][i] for k+1 < i < j (upper triangle only).
-fn eliminate(a: &mut [u64], n: usize, k: usize, inv: u64, md: Modulus) {
-    let p = md.p;
-    let k1 = k + 1;
-    let t: Vec<u64> = (k1 + 1..n).map(|i| md.reduce(a[k * n + i] * inv)).collect();
-    let row1: Vec<u64> = a[k1 * n..(k1 + 1) * n].to_vec();
-    for i in k1 + 1..n {
-        let ti = t[i - k1 - 1];
-        let ri = row1[i];
-        if ti == 0 && ri == 0 {
-            continue;
-        }
-        let (neg_ti, row) = (p - ti, &mut a[i * n..(i + 1) * n]);
-        for j in i + 1..n {
-            let tj = t[j - k1 - 1];
-            // a[i][j] - t_i a[k+1][j] + t_j a[k+1][i], with a[k+1][i] = row1[i].
-            let x = md.reduce(neg_ti * row1[j] + tj * ri);
-            let y = row[j] + x;
-            row[j] = if y >= p { y - p } else { y };
-        }
-    }
-}
-
-/// Recovers the signed value from residues (|value| < product / 2) and returns its absolute
-/// value, by Garner's mixed-radix method.
-fn symmetric_crt(residues: &[u64], primes: &[u64]) -> BigUint {
-    let mut value = BigUint::zero();
-    let mut modulus = BigUint::one();
-    for (&r, &p) in residues.iter().zip(primes) {
-        let current = (&value % p).to_u64_digits().first().copied().unwrap_or(0);
-        let m_mod_p = (&modulus % p).to_u64_digits().first().copied().unwrap_or(0);
-        let diff = (r + p - current) % p;
-        let t = diff * pow_mod(m_mod_p, p - 2, p) % p;
-        value += &modulus * t;
-        modulus *= p;
-    }
-    let half = &modulus >> 1;
-    if value > half {
-        modulus - value
-    } else {
-        value
+    SkewMatrix {
+        n: n - 2 * usize::from(without.is_some()),
+        entries,
     }
 }
 

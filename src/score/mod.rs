@@ -44,6 +44,7 @@ pub mod bonds;
 pub mod faces;
 pub mod huckel;
 pub mod kekule;
+mod pfaffian;
 pub mod rank;
 pub mod symmetry;
 
