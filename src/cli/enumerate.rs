@@ -129,6 +129,8 @@ fn run_size(out: &mut Out, args: &Args, atoms: u64) -> Result<(), CliError> {
                 .map_err(|e| CliError::failed(format!("scoring {}: {e}", iso.spiral)))
                 .and_then(|d| write_line(out, &isomer_line(args, atoms, &iso, d)))
             {
+                // Nobody reads the rest (e.g. `| head`): stop instead of enumerating on.
+                Ok(()) if out.is_closed() => ControlFlow::Break(()),
                 Ok(()) => ControlFlow::Continue(()),
                 Err(e) => {
                     failure = Some(e);

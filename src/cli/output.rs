@@ -16,6 +16,11 @@ impl Out {
         }
     }
 
+    /// True once the reader has gone away; callers can stop producing lines.
+    pub fn is_closed(&self) -> bool {
+        self.closed
+    }
+
     pub fn finish(mut self) -> Result<(), CliError> {
         if self.closed {
             return Ok(());
