@@ -52,43 +52,6 @@ fn c100() -> Cage {
     panic!("no C100 spiral in the benchmark family winds");
 }
 
-/// Leapfrog transform (truncation of the dual), as in tests/huckel_kekule.rs: one atom per
-/// (face, side) corner; every old atom becomes a hexagon. Builds large cages without spirals.
-fn leapfrog(cage: &Cage) -> Cage {
-    let faces = cage.faces();
-    let mut offset = vec![0u32; faces.len() + 1];
-    for (f, face) in faces.iter().enumerate() {
-        offset[f + 1] = offset[f] + face.len() as u32;
-    }
-    let id = |f: usize, i: usize| offset[f] + (i % faces[f].len()) as u32;
-    let across = |f: usize, i: usize| {
-        let g = cage.dual()[f][i] as usize;
-        let j = cage.dual()[g]
-            .iter()
-            .position(|&h| h as usize == f)
-            .expect("dual is symmetric");
-        id(g, j)
-    };
-    let build = |mirror: bool| {
-        let mut rotation = vec![[0u32; 3]; offset[faces.len()] as usize];
-        for (f, face) in faces.iter().enumerate() {
-            let k = face.len();
-            for i in 0..k {
-                let (next, prev) = (id(f, i + 1), id(f, i + k - 1));
-                rotation[id(f, i) as usize] = if mirror {
-                    [prev, next, across(f, i)]
-                } else {
-                    [next, prev, across(f, i)]
-                };
-            }
-        }
-        Cage::from_rotation(rotation)
-    };
-    build(false)
-        .or_else(|_| build(true))
-        .expect("the leapfrog of a cage is a cage")
-}
-
 /// The first `n` C100 isomers in spiral order (what `cagerank enumerate 100 --json | head -n
 /// 1000` prints), as cages.
 fn first_c100(n: usize) -> Vec<Cage> {
@@ -144,7 +107,7 @@ fn bench_peer_set(c: &mut Criterion) {
 /// the large-count test in tests/huckel_kekule.rs), whose count has 124 bits.
 fn bench_large(c: &mut Criterion) {
     let (_, c60) = cages().swap_remove(0);
-    let c540 = leapfrog(&leapfrog(&c60));
+    let c540 = c60.leapfrog().leapfrog();
     let mut g = c.benchmark_group("large cage");
     g.sample_size(10);
     g.bench_function("C540 kekule_count", |b| {

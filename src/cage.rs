@@ -304,6 +304,46 @@ impl Cage {
         self.pentagon_adjacencies() == 0
     }
 
+    /// The leapfrog cage (the truncation of the dual): one atom per corner of every face, each
+    /// face keeps its ring size and every old atom becomes a hexagon, so atoms triple (Fowler &
+    /// Steer, J. Chem. Soc., Chem. Commun. (1987) 1403, from memory). Builds large cages
+    /// without going through spirals.
+    pub fn leapfrog(&self) -> Cage {
+        let faces = &self.faces;
+        let mut offset = vec![0u32; faces.len() + 1];
+        for (f, face) in faces.iter().enumerate() {
+            offset[f + 1] = offset[f] + face.len() as u32;
+        }
+        let id = |f: usize, i: usize| offset[f] + (i % faces[f].len()) as u32;
+        let across = |f: usize, i: usize| {
+            let g = self.dual[f][i] as usize;
+            let j = self.dual[g]
+                .iter()
+                .position(|&h| h as usize == f)
+                .expect("invariant: the dual is symmetric");
+            id(g, j)
+        };
+        // Which of the two corner orders matches the stored orientation is tried, not derived.
+        let build = |mirror: bool| {
+            let mut rotation = vec![[0u32; 3]; offset[faces.len()] as usize];
+            for (f, face) in faces.iter().enumerate() {
+                let k = face.len();
+                for i in 0..k {
+                    let (next, prev) = (id(f, i + 1), id(f, i + k - 1));
+                    rotation[id(f, i) as usize] = if mirror {
+                        [prev, next, across(f, i)]
+                    } else {
+                        [next, prev, across(f, i)]
+                    };
+                }
+            }
+            Cage::from_rotation(rotation)
+        };
+        build(false)
+            .or_else(|_| build(true))
+            .expect("invariant: the leapfrog of a polyhedral cage is a cage")
+    }
+
     /// The same cage with vertices renamed by `perm` (new index of old vertex v is `perm[v]`).
     /// Used by tests and by anything that must not depend on atom order.
     pub fn relabelled(&self, perm: &[u32]) -> Cage {

@@ -63,44 +63,6 @@ fn isomers_up_to(max: u64) -> Vec<Cage> {
         .collect()
 }
 
-/// Leapfrog transform (truncation of the dual): one atom per (face, side) corner; each face keeps
-/// its ring and every old atom becomes a hexagon. Used to build large cages independently of the
-/// spiral code.
-fn leapfrog(cage: &Cage) -> Cage {
-    let faces = cage.faces();
-    let mut offset = vec![0u32; faces.len() + 1];
-    for (f, face) in faces.iter().enumerate() {
-        offset[f + 1] = offset[f] + face.len() as u32;
-    }
-    let id = |f: usize, i: usize| offset[f] + (i % faces[f].len()) as u32;
-    let across = |f: usize, i: usize| {
-        let g = cage.dual()[f][i] as usize;
-        let j = cage.dual()[g]
-            .iter()
-            .position(|&h| h as usize == f)
-            .expect("dual is symmetric");
-        id(g, j)
-    };
-    let build = |mirror: bool| {
-        let mut rotation = vec![[0u32; 3]; offset[faces.len()] as usize];
-        for (f, face) in faces.iter().enumerate() {
-            let k = face.len();
-            for i in 0..k {
-                let (next, prev) = (id(f, i + 1), id(f, i + k - 1));
-                rotation[id(f, i) as usize] = if mirror {
-                    [prev, next, across(f, i)]
-                } else {
-                    [next, prev, across(f, i)]
-                };
-            }
-        }
-        Cage::from_rotation(rotation)
-    };
-    build(false)
-        .or_else(|_| build(true))
-        .expect("the leapfrog of a cage is a cage")
-}
-
 /// Independent perfect-matching counter: match the lowest free atom with each free neighbour.
 fn brute_count(cage: &Cage) -> u64 {
     brute_count_from(cage, &mut vec![false; cage.atoms()])
@@ -198,7 +160,7 @@ fn matchings_through_each_c60_bond_give_pauling_numerators() {
 fn large_leapfrog_count_is_stable_across_prime_sets_and_sums_over_a_vertex() {
     // C540 = leapfrog of leapfrog of C60: 540 atoms, a count of about 1.3 x 10^37 (124 bits),
     // far beyond u64.
-    let cage = leapfrog(&leapfrog(&c60()));
+    let cage = c60().leapfrog().leapfrog();
     assert_eq!(cage.atoms(), 540);
     let count = kekule_count(&cage);
     assert!(count.bits() > 64, "the bigint path is exercised");
@@ -236,7 +198,7 @@ fn large_leapfrog_count_is_stable_across_prime_sets_and_sums_over_a_vertex() {
 fn leapfrog_of_dodecahedron_is_c60() {
     // Leapfrog of C20 is C60-Ih (Fowler & Austin, J. Chem. Inf. Comput. Sci. 34 (1994) 264);
     // its count is Klein et al.'s 12500 (JACS 108 (1986) 1301).
-    let cage = leapfrog(&c20());
+    let cage = c20().leapfrog();
     assert_eq!(kekule_count(&cage), BigUint::from(12500u32));
     let (a, b) = (eigenvalues(&cage), eigenvalues(&c60()));
     assert!(a.iter().zip(&b).all(|(x, y)| (x - y).abs() < 1e-9));
@@ -245,7 +207,7 @@ fn leapfrog_of_dodecahedron_is_c60() {
 #[test]
 fn too_few_primes_are_caught_by_a_different_answer() {
     // Guards the bound's role: one prime (product ~2^62) cannot hold C540's 124-bit count.
-    let cage = leapfrog(&leapfrog(&c60()));
+    let cage = c60().leapfrog().leapfrog();
     let one = kekule_count_with_primes(&cage, &primes_for(cage.atoms())[..1]);
     assert_ne!(one, kekule_count(&cage));
 }
@@ -298,7 +260,7 @@ fn kekule_counts_do_not_depend_on_thread_count() {
     // which thread computed what, or on what a buffer held before.
     use rayon::prelude::*;
     let mut cages = isomers_up_to(44);
-    cages.push(leapfrog(&leapfrog(&c60())));
+    cages.push(c60().leapfrog().leapfrog());
     let serial: Vec<BigUint> = cages.iter().map(kekule_count).collect();
     let parallel: Vec<BigUint> = cages.par_iter().map(kekule_count).collect();
     assert_eq!(serial, parallel);
@@ -486,8 +448,8 @@ fn sum_of_squared_eigenvalues_is_twice_the_bond_count() {
 #[test]
 fn leapfrog_cages_are_properly_closed() {
     // Fowler & Austin, J. Chem. Inf. Comput. Sci. 34 (1994) 264: leapfrogs are properly closed.
-    for base in [c70(), leapfrog(&c20()), c60()] {
-        let big = leapfrog(&base);
+    for base in [c70(), c20().leapfrog(), c60()] {
+        let big = base.leapfrog();
         let s = summarize(&eigenvalues(&big), 0).expect("neutral");
         assert_eq!(s.shell, Shell::ProperlyClosed, "C{}", big.atoms());
     }

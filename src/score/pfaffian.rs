@@ -644,42 +644,6 @@ mod tests {
             .to_cage()
     }
 
-    /// Leapfrog (truncation of the dual), as in tests/huckel_kekule.rs: triples the atoms.
-    fn leapfrog(cage: &Cage) -> Cage {
-        let faces = cage.faces();
-        let mut offset = vec![0u32; faces.len() + 1];
-        for (f, face) in faces.iter().enumerate() {
-            offset[f + 1] = offset[f] + face.len() as u32;
-        }
-        let id = |f: usize, i: usize| offset[f] + (i % faces[f].len()) as u32;
-        let across = |f: usize, i: usize| {
-            let g = cage.dual()[f][i] as usize;
-            let j = cage.dual()[g]
-                .iter()
-                .position(|&h| h as usize == f)
-                .expect("dual is symmetric");
-            id(g, j)
-        };
-        let build = |mirror: bool| {
-            let mut rotation = vec![[0u32; 3]; offset[faces.len()] as usize];
-            for (f, face) in faces.iter().enumerate() {
-                let k = face.len();
-                for i in 0..k {
-                    let (next, prev) = (id(f, i + 1), id(f, i + k - 1));
-                    rotation[id(f, i) as usize] = if mirror {
-                        [prev, next, across(f, i)]
-                    } else {
-                        [next, prev, across(f, i)]
-                    };
-                }
-            }
-            Cage::from_rotation(rotation)
-        };
-        build(false)
-            .or_else(|_| build(true))
-            .expect("the leapfrog of a cage is a cage")
-    }
-
     const SMALL_PRIMES: [u64; 17] = [
         3, 5, 7, 11, 13, 17, 19, 23, 29, 31, 37, 41, 43, 47, 53, 59, 61,
     ];
@@ -852,7 +816,7 @@ mod tests {
     fn sparse_matches_dense_on_c540_and_for_a_bond_minor() {
         // Against the previous dense elimination on the large cage of the integration tests
         // (and on one of its bond minors, which kekule_count_containing uses).
-        let cage = leapfrog(&leapfrog(&c60()));
+        let cage = c60().leapfrog().leapfrog();
         for without in [None, Some(cage.edges()[7])] {
             let matrix = kasteleyn_matrix(&cage, without);
             let a = dense(&matrix);
@@ -879,7 +843,7 @@ mod tests {
                 "n = {n}: {} updates, bound {bound}",
                 ws.updates
             );
-            cage = leapfrog(&cage);
+            cage = cage.leapfrog();
         }
     }
 }
