@@ -224,11 +224,11 @@ def walk(verts, glue, p, x, d):
         q, g = side_map(verts, glue, p, s)
         # Map the exit point and the end through the gluing (g is affine, exact on Fractions).
         ex = (start[0] + t * (end[0] - start[0]), start[1] + t * (end[1] - start[1]))
-        start, end, p = g_frac(g, verts, glue, p, s, ex), g(end), q
+        start, end, p = g_frac(g, ex), g(end), q
     raise RuntimeError("step crossed too many sides")
 
 
-def g_frac(g, verts, glue, p, s, x):
+def g_frac(g, x):
     # g is a rotation by a multiple of 60 degrees plus a translation: apply it to a rational
     # point by linearity, g(x) = g(0) + (g(e1) - g(0)) x0 + (g(e2) - g(0)) x1.
     o = g((0, 0))

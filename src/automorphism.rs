@@ -13,8 +13,9 @@ use crate::cage::Cage;
 use crate::spiral::Automorphism;
 use std::collections::{HashMap, VecDeque};
 
-/// All automorphisms of `cage`, identity first, then in order of the image of the dart from
-/// atom 0 to its first neighbour (proper before improper for the same image).
+/// All automorphisms of `cage` in order of the image of the dart from atom 0 to its first
+/// neighbour (proper before improper for the same image); that order puts the identity first,
+/// since the first candidate image is the dart itself.
 pub fn automorphisms(cage: &Cage) -> Vec<Automorphism> {
     let rotation = cage.rotation();
     let dart_face = dart_faces(cage);
@@ -33,13 +34,6 @@ pub fn automorphisms(cage: &Cage) -> Vec<Automorphism> {
                 }
             }
         }
-    }
-    if let Some(i) = found
-        .iter()
-        .position(|a| a.proper && a.atoms.iter().enumerate().all(|(k, &x)| x == k as u32))
-    {
-        let identity = found.remove(i);
-        found.insert(0, identity);
     }
     found
 }
