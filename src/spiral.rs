@@ -556,6 +556,7 @@ pub struct Start {
 pub(crate) struct RotationScratch {
     succ: Vec<[(u32, u32); MAX_FACE]>,
     filled: Vec<u8>,
+    next: Vec<u32>,
 }
 
 /// The dual triangulation in a compact form for fast spiral reading.
@@ -598,10 +599,11 @@ impl Dual {
     ) {
         let f = sizes.len();
         // succ[x] lists pairs (y, z): z follows y around x.
-        let RotationScratch { succ, filled } = scratch;
+        let RotationScratch { succ, filled, next } = scratch;
         succ.resize(f, [(u32::MAX, 0); MAX_FACE]);
         filled.clear();
         filled.resize(f, 0);
+        next.resize(f, 0);
         self.size.clear();
         self.size.extend_from_slice(sizes);
         for &[a, b, c] in triangles {
@@ -616,15 +618,17 @@ impl Dual {
         for x in 0..f {
             let d = sizes[x] as usize;
             let pairs = &succ[x][..d];
+            // Each neighbour of x starts exactly one pair, so `next` (indexed by face) holds
+            // x's rotation; entries left by other faces are never read.
+            for &(y, z) in pairs {
+                next[y as usize] = z;
+            }
             let mut cur = pairs[0].0;
             for slot in self.nbr[x].iter_mut().take(d) {
                 *slot = cur;
-                cur = pairs
-                    .iter()
-                    .find(|p| p.0 == cur)
-                    .expect("rotation closes around every face")
-                    .1;
+                cur = next[cur as usize];
             }
+            debug_assert_eq!(cur, pairs[0].0, "rotation closes around face {x}");
         }
     }
 
@@ -848,14 +852,13 @@ fn pentagon_ring_code(ring: &[u8]) -> Option<u8> {
     })
 }
 
-/// For each pentagon ring code, the smallest code of that ring read from any neighbour in
-/// either sense: a pentagon whose smallest reading exceeds the sequence's own first ring can
-/// be passed over without looking at its ten starts.
-const SMALLEST_PENTAGON_RING: [u8; 32] = {
-    let mut table = [0u8; 32];
+/// For each pentagon ring code, the ring read from each neighbour `pos` (the ring's own first
+/// neighbour is 0) anticlockwise and clockwise, as codes: the enumerator compares these with the
+/// sequence's first ring instead of comparing the face sizes one by one.
+const PENTAGON_RING_READINGS: [[[u8; 2]; 5]; 32] = {
+    let mut table = [[[0u8; 2]; 5]; 32];
     let mut code = 0;
     while code < 32 {
-        let mut best = 31u8;
         let mut pos = 0;
         while pos < 5 {
             let (mut anticlockwise, mut clockwise) = (0u8, 0u8);
@@ -865,15 +868,31 @@ const SMALLEST_PENTAGON_RING: [u8; 32] = {
                 clockwise = clockwise << 1 | (code >> (4 - (pos + 5 - i) % 5)) as u8 & 1;
                 i += 1;
             }
-            if anticlockwise < best {
-                best = anticlockwise;
+            table[code][pos] = [anticlockwise, clockwise];
+            pos += 1;
+        }
+        code += 1;
+    }
+    table
+};
+
+/// For each pentagon ring code, the smallest of its readings: a pentagon whose smallest reading
+/// exceeds the sequence's own first ring can be passed over without looking at its ten starts.
+const SMALLEST_PENTAGON_RING: [u8; 32] = {
+    let mut table = [31u8; 32];
+    let mut code = 0;
+    while code < 32 {
+        let mut pos = 0;
+        while pos < 5 {
+            let [anticlockwise, clockwise] = PENTAGON_RING_READINGS[code][pos];
+            if anticlockwise < table[code] {
+                table[code] = anticlockwise;
             }
-            if clockwise < best {
-                best = clockwise;
+            if clockwise < table[code] {
+                table[code] = clockwise;
             }
             pos += 1;
         }
-        table[code] = best;
         code += 1;
     }
     table
@@ -906,31 +925,46 @@ fn test_starts(
         // A cage has more faces than any face has neighbours; `n` only guards the slice.
         let n = d.min(sizes.len() - 1);
         let want = &sizes[1..=n];
+        let mut classify = |pos: usize, sense: Sense, order: Ordering| {
+            let start = Start {
+                first: FaceId(f),
+                second: FaceId(ring[pos]),
+                sense,
+            };
+            match order {
+                Ordering::Less => smaller.push(start),
+                Ordering::Equal => equal.push(start),
+                Ordering::Greater => {}
+            }
+        };
         if d as u8 == sizes[0] {
+            // Pentagon starts of a fullerene: compare five-bit ring codes, not face sizes.
             if let (Some(ring_code), Some(want_code)) =
                 (pentagon_ring_code(&forward[..d]), pentagon_ring_code(want))
             {
                 if SMALLEST_PENTAGON_RING[ring_code as usize] > want_code {
                     continue;
                 }
+                for (pos, readings) in PENTAGON_RING_READINGS[ring_code as usize]
+                    .iter()
+                    .enumerate()
+                {
+                    classify(pos, Sense::Anticlockwise, readings[0].cmp(&want_code));
+                    classify(pos, Sense::Clockwise, readings[1].cmp(&want_code));
+                }
+                continue;
             }
         }
-        for (pos, &g) in ring.iter().enumerate() {
+        for pos in 0..d {
             for (sense, terms) in [
                 (Sense::Anticlockwise, &forward[pos..pos + n]),
                 (Sense::Clockwise, &backward[d - 1 - pos..d - 1 - pos + n]),
             ] {
-                let order = (d as u8).cmp(&sizes[0]).then_with(|| terms.cmp(want));
-                let start = Start {
-                    first: FaceId(f),
-                    second: FaceId(g),
+                classify(
+                    pos,
                     sense,
-                };
-                match order {
-                    Ordering::Less => smaller.push(start),
-                    Ordering::Equal => equal.push(start),
-                    Ordering::Greater => {}
-                }
+                    (d as u8).cmp(&sizes[0]).then_with(|| terms.cmp(want)),
+                );
             }
         }
     }

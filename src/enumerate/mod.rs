@@ -22,6 +22,8 @@
 //! are complete only below 380 atoms (Wirz et al., J. Chem. Inf. Model. 54 (2014) 121);
 //! [`Spec::spiral_complete`] says so.
 
+mod store;
+
 use crate::cage::FaceSet;
 use crate::spiral::{
     check_fullerene_atoms, test_canonical, Canonicity, Dual, Reader, RotationScratch, Spiral,
@@ -29,12 +31,9 @@ use crate::spiral::{
 };
 use rayon::prelude::*;
 use std::cell::RefCell;
-use std::collections::HashMap;
 use std::fmt;
-use std::hash::{BuildHasherDefault, Hasher};
 use std::ops::ControlFlow;
 use std::str::FromStr;
-use std::sync::{Mutex, MutexGuard, OnceLock};
 
 /// Smallest atom count from which some fullerenes have no face spiral at all (T-C380;
 /// Wirz, Tonner, Avery, Schwerdtfeger, J. Chem. Inf. Model. 54 (2014) 121).
@@ -216,73 +215,21 @@ impl Budget {
 /// bits a face in a `u32`).
 const MEMO_DEPTH: usize = 14;
 
-/// Bounds on the shared store of completions (peak process memory up to about 450 MB with the
-/// hash tables' spare capacity); a shard is emptied when it reaches its part of either.
-const STORE_MAX_BOUNDARIES: usize = 1 << 22;
-const STORE_MAX_CODES: usize = 1 << 24;
-const STORE_SHARDS: usize = 64;
-
 thread_local! {
     /// Per-thread search scratch and memo statistics.
     static MEMO: RefCell<Memo> = RefCell::new(Memo::default());
 }
 
-/// Completions found so far, shared by every thread (each would otherwise learn the same
-/// boundaries again) and kept across units and runs: entries are keyed by the run's
-/// [`spec_tag`] and the boundary key. Sharded so that threads rarely wait on one lock.
-static STORE: OnceLock<Vec<Mutex<StoreShard>>> = OnceLock::new();
-
-#[derive(Default)]
-struct StoreShard {
-    /// (spec tag, boundary key) → range of `codes`.
-    map: HashMap<(u64, u128), (u32, u32), BuildHasherDefault<KeyHasher>>,
-    codes: Vec<u32>,
-}
-
-fn store_shard(tag: u64, key: u128) -> MutexGuard<'static, StoreShard> {
-    let shards = STORE.get_or_init(|| {
-        (0..STORE_SHARDS)
-            .map(|_| Mutex::new(StoreShard::default()))
-            .collect()
-    });
-    let mut h = KeyHasher(tag);
-    h.write_u128(key);
-    let shard = &shards[(h.finish() >> 58) as usize % STORE_SHARDS];
-    // A panic elsewhere cannot leave a shard inconsistent: ranges are inserted after their codes.
-    shard
-        .lock()
-        .unwrap_or_else(|poisoned| poisoned.into_inner())
-}
-
 /// Empties the completion store, so that the next run starts cold as in a fresh process
 /// (benchmarks; results never depend on the store).
 pub fn forget_completions() {
-    if let Some(shards) = STORE.get() {
-        for shard in shards {
-            let mut shard = shard
-                .lock()
-                .unwrap_or_else(|poisoned| poisoned.into_inner());
-            shard.map.clear();
-            shard.codes.clear();
-        }
-    }
-}
-
-/// An injective code of everything in a [`Spec`] that shapes the search.
-fn spec_tag(spec: &Spec) -> u64 {
-    let set = match spec.face_set {
-        FaceSet::Fullerene => 0u64,
-        FaceSet::SquareHexagon => 1,
-        FaceSet::SquarePentagonHexagon => 2,
-    };
-    u64::from(spec.atoms) | set << 32 | u64::from(spec.ipr) << 34 | u64::from(spec.all_starts) << 35
+    store::forget();
 }
 
 /// One thread's side of the memo (see [`Search::solve`]).
 #[derive(Default)]
 struct Memo {
     spec: Option<Spec>,
-    tag: u64,
     /// Completion codes of the prefixes being searched.
     stack: Vec<u32>,
     /// Codes copied out of the store for replay.
@@ -300,7 +247,6 @@ impl Memo {
     fn prepare(&mut self, spec: &Spec) {
         if self.spec != Some(*spec) {
             self.spec = Some(*spec);
-            self.tag = spec_tag(spec);
             self.depth = MEMO_DEPTH;
             self.lookups = [0; MEMO_DEPTH + 1];
             self.hits = [0; MEMO_DEPTH + 1];
@@ -321,63 +267,12 @@ impl Memo {
 
     /// Copies the stored completions of boundary `key` into `self.replay`; false if unknown.
     fn recall(&mut self, key: u128) -> bool {
-        let shard = store_shard(self.tag, key);
-        let Some(&(from, to)) = shard.map.get(&(self.tag, key)) else {
-            return false;
-        };
-        self.replay.clear();
-        self.replay
-            .extend_from_slice(&shard.codes[from as usize..to as usize]);
-        true
+        store::recall(key, &mut self.replay)
     }
 
     /// Stores `stack[from..]` as the completions of boundary `key`.
     fn remember(&mut self, key: u128, from: usize) {
-        let new = &self.stack[from..];
-        let (max_boundaries, max_codes) = (
-            STORE_MAX_BOUNDARIES / STORE_SHARDS,
-            STORE_MAX_CODES / STORE_SHARDS,
-        );
-        if new.len() > max_codes {
-            return;
-        }
-        let mut shard = store_shard(self.tag, key);
-        if shard.map.len() >= max_boundaries || shard.codes.len() + new.len() > max_codes {
-            shard.map.clear();
-            shard.codes.clear();
-        }
-        let start = shard.codes.len() as u32;
-        shard.codes.extend_from_slice(new);
-        let end = shard.codes.len() as u32;
-        shard.map.insert((self.tag, key), (start, end));
-    }
-}
-
-/// Multiply-fold hash for boundary keys: the keys are already dense bit patterns, so a
-/// DoS-resistant hasher would only cost time.
-#[derive(Default)]
-struct KeyHasher(u64);
-
-impl Hasher for KeyHasher {
-    fn finish(&self) -> u64 {
-        self.0
-    }
-
-    fn write(&mut self, bytes: &[u8]) {
-        for &b in bytes {
-            self.0 = (self.0.rotate_left(8) ^ u64::from(b)).wrapping_mul(0x9E37_79B9_7F4A_7C15);
-        }
-    }
-
-    fn write_u64(&mut self, k: u64) {
-        self.0 = (k ^ self.0).wrapping_mul(0x9E37_79B9_7F4A_7C15);
-        self.0 ^= self.0 >> 32;
-    }
-
-    fn write_u128(&mut self, k: u128) {
-        let folded = (k as u64) ^ ((k >> 64) as u64).rotate_left(29);
-        self.0 = (folded ^ self.0).wrapping_mul(0x9E37_79B9_7F4A_7C15);
-        self.0 ^= self.0 >> 32;
+        store::remember(key, &self.stack[from..]);
     }
 }
 
@@ -502,7 +397,19 @@ impl<'a> Search<'a> {
         }
         let left = 12 - used;
         let first = self.winder.sizes().first().map_or(0, |&f| f as u32);
-        let header = (r as u32) << 12 | left << 8 | first << 1 | u32::from(self.spec.all_starts);
+        // Everything besides the boundary that decides the completions. The atom count is not
+        // needed: winding depends on it only through the faces to go, so sizes share entries.
+        let set = match self.spec.face_set {
+            FaceSet::Fullerene => 0,
+            FaceSet::SquareHexagon => 1,
+            FaceSet::SquarePentagonHexagon => 2,
+        };
+        let header = (r as u32) << 12
+            | left << 8
+            | set << 6
+            | u32::from(self.spec.ipr) << 5
+            | first << 1
+            | u32::from(self.spec.all_starts);
         let key = if r <= memo.depth {
             self.winder.boundary_key(header, self.spec.ipr)
         } else {
