@@ -213,7 +213,15 @@ impl Budget {
 
 /// Completions are remembered for prefixes with at most this many faces to go (codes hold two
 /// bits a face in a `u32`).
-const MEMO_DEPTH: usize = 14;
+const MEMO_DEPTH: usize = 16;
+
+/// Below the first level, boundaries are looked up only every third level (with two faces to
+/// go, five, eight, ...). Each lookup in the store is a cache miss, and a hit replays the
+/// levels below it anyway; looking up every level took about 15 % more time and three times
+/// the memory for all C70 and IPR C100 (measured, docs/performance.md).
+fn looked_up(r: usize, depth: usize) -> bool {
+    r == depth || r % 3 == 2
+}
 
 thread_local! {
     /// Per-thread search scratch and memo statistics.
@@ -410,7 +418,7 @@ impl<'a> Search<'a> {
             | u32::from(self.spec.ipr) << 5
             | first << 1
             | u32::from(self.spec.all_starts);
-        let key = if r <= memo.depth {
+        let key = if r <= memo.depth && looked_up(r, memo.depth) {
             self.winder.boundary_key(header, self.spec.ipr)
         } else {
             None
