@@ -804,7 +804,10 @@ impl Reader {
         let ring = dual.neighbours(first);
         let d = ring.len();
         let p = ring.iter().position(|&x| x == last)?;
-        let (u, v) = (ring[(p + 1) % d], ring[(p + d - 1) % d]);
+        // Neighbours on either side of `last`; no `%`, as a division here is a measurable
+        // part of reading a spiral.
+        let u = ring[if p + 1 == d { 0 } else { p + 1 }];
+        let v = ring[if p == 0 { d - 1 } else { p - 1 }];
         match (self.visited(u), self.visited(v)) {
             (false, true) => Some(u),
             (true, false) => Some(v),

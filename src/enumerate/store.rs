@@ -8,10 +8,13 @@
 
 use std::sync::{Mutex, MutexGuard, OnceLock};
 
-/// Bounds on the store (peak process memory up to about 300 MB); a shard is emptied when it
-/// reaches its part of either.
-const MAX_BOUNDARIES: usize = 1 << 22;
-const MAX_CODES: usize = 1 << 24;
+/// Bounds on the store (peak process memory up to about 600 MB); a shard is emptied when it
+/// reaches its part of either. All C100 on 2 threads took 151 s with 2^21 boundaries, 121 s
+/// with 2^22, 103 s with 2^23 and 115 s with 2^24 (0.17, 0.31, 0.61 and 0.91 GB peak;
+/// docs/performance.md): beyond 2^23 the larger table costs more in cache misses than its
+/// extra hits save.
+const MAX_BOUNDARIES: usize = 1 << 23;
+const MAX_CODES: usize = 1 << 25;
 const SHARDS: usize = 64;
 /// Slots per shard: a table starts small and doubles when half full, up to twice the boundaries
 /// a shard may hold, so probe runs stay short and small runs touch little memory.
