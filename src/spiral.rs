@@ -257,6 +257,8 @@ struct Frame {
     pushed: bool,
     connected: [u32; MAX_FACE],
     n_connected: u8,
+    /// Open valency before the push.
+    open: u32,
 }
 
 /// Incremental spiral winding with undo, shared by [`Spiral::from_sizes`] and the enumerator.
@@ -274,6 +276,8 @@ pub(crate) struct Winder {
     head: usize,
     triangles: Vec<[u32; 3]>,
     frames: Vec<Frame>,
+    /// Sum of the free valencies of the open boundary faces, kept as faces come and go.
+    open: u32,
 }
 
 impl Winder {
@@ -287,6 +291,7 @@ impl Winder {
             head: 0,
             triangles: Vec::with_capacity(2 * total_faces),
             frames: Vec::with_capacity(total_faces),
+            open: 0,
         }
     }
 
@@ -301,10 +306,7 @@ impl Winder {
     /// Sum of the free valencies of the open boundary faces (the length of the patch's
     /// boundary circuit in the primal graph).
     pub(crate) fn open_valency(&self) -> u32 {
-        self.boundary[self.head..]
-            .iter()
-            .map(|&f| self.valency[f as usize] as u32)
-            .sum()
+        self.open
     }
 
     /// Packs everything the rest of the winding depends on — the free valency of each open
@@ -346,6 +348,7 @@ impl Winder {
             pushed: false,
             connected: [0; MAX_FACE],
             n_connected: 0,
+            open: self.open,
         };
         self.frames.push(frame);
         self.sizes.push(size);
@@ -362,8 +365,14 @@ impl Winder {
         } else {
             self.attach_last(k)
         };
-        if result.is_err() {
-            self.pop();
+        match result {
+            Ok(()) => {
+                // Each join takes one free edge from the new face and one from an open face;
+                // faces closed by it leave the boundary with none left.
+                let joins = self.frames.last().expect("pushed above").n_connected as u32;
+                self.open = self.open + size as u32 - 2 * joins;
+            }
+            Err(_) => self.pop(),
         }
         result
     }
@@ -384,6 +393,7 @@ impl Winder {
             self.boundary.push(f);
         }
         self.head = frame.head as usize;
+        self.open = frame.open;
     }
 
     /// Appends the newest face to the boundary, recording it for undo.
@@ -1214,6 +1224,45 @@ mod tests {
             Spiral::from_pentagon_indices(60, &big),
             Err(SpiralError::OutOfRange { .. })
         ));
+    }
+
+    #[test]
+    fn open_valency_is_kept_through_pushes_pops_and_failures() {
+        // The winder keeps the boundary's free valency as faces come and go; it must equal the
+        // sum over the open faces at every step, including after pushes that fail and undo.
+        let open_sum = |w: &Winder| -> u32 {
+            w.boundary[w.head..]
+                .iter()
+                .map(|&f| u32::from(w.valency[f as usize]))
+                .sum()
+        };
+        let spec = crate::enumerate::Spec::fullerene(44, false).unwrap();
+        let mut spirals = Vec::new();
+        crate::enumerate::enumerate(
+            &spec,
+            &Default::default(),
+            |_, _| {},
+            |iso| spirals.push(iso.spiral),
+        )
+        .unwrap();
+        let mut failures = 0;
+        for spiral in &spirals {
+            let mut w = Winder::new(spec.faces(), false);
+            for &size in spiral.sizes() {
+                // Try the other size first: it often fails, and must leave no trace.
+                let other = if size == 5 { 6 } else { 5 };
+                if w.push(other).is_ok() {
+                    w.pop();
+                } else {
+                    failures += 1;
+                }
+                assert_eq!(w.open_valency(), open_sum(&w), "{spiral}");
+                w.push(size).unwrap();
+                assert_eq!(w.open_valency(), open_sum(&w), "{spiral}");
+            }
+            assert_eq!(w.open_valency(), 0);
+        }
+        assert!(failures > 0);
     }
 
     #[test]
