@@ -67,7 +67,7 @@ fn ipr_counts_match_oeis_a046880() {
 }
 
 #[test]
-#[ignore = "heavy: about ten minutes on 2 cores; run with cargo test --release -- --ignored"]
+#[ignore = "heavy: about 90 s on 2 cores (measured 2026-12-02); run with cargo test --release -- --ignored"]
 fn c100_pentagon_starts_miss_exactly_one_cage() {
     // OEIS A007894: 285914 fullerenes with 100 atoms. Spirals starting on a pentagon find all
     // but one (measured 2026-12-02): the Td cage of tests/data/c100_no_pentagon_start.xyz has
@@ -77,7 +77,7 @@ fn c100_pentagon_starts_miss_exactly_one_cage() {
 }
 
 #[test]
-#[ignore = "heavy: 5,708 s of CPU measured (about 50 minutes on 2 cores); run with cargo test --release -- --ignored"]
+#[ignore = "heavy: about 13 minutes on 2 cores (1,421 s of CPU measured 2026-12-02); run with cargo test --release -- --ignored"]
 fn c100_all_starts_count_matches_oeis() {
     // OEIS A007894: 285914 fullerenes with 100 atoms. With hexagon starts as well, the one cage
     // the default misses comes last: the Td cage whose spirals all start on hexagons (see
@@ -109,7 +109,7 @@ fn c100_all_starts_count_matches_oeis() {
 }
 
 #[test]
-#[ignore = "heavy: IPR C120; run with cargo test --release -- --ignored"]
+#[ignore = "heavy: IPR C120, about 45 s on 2 cores (measured 2026-12-02); run with cargo test --release -- --ignored"]
 fn ipr_c120_count_matches_oeis() {
     // OEIS A046880: 10774 IPR fullerenes with 120 atoms.
     assert_eq!(count(120, true), 10_774);

@@ -228,8 +228,8 @@ thread_local! {
     static MEMO: RefCell<Memo> = RefCell::new(Memo::default());
 }
 
-/// Empties the completion store, so that the next run starts cold as in a fresh process
-/// (benchmarks; results never depend on the store).
+/// Empties the completion store (keeping its memory), so that the next run finds nothing
+/// stored, as in a fresh process (benchmarks; results never depend on the store).
 pub fn forget_completions() {
     store::forget();
 }

@@ -156,7 +156,8 @@ mod tests {
 
     #[test]
     fn remembers_recalls_and_keeps_the_first_entry() {
-        // Keys with this high tag are not produced by the search (its headers stay below 2^22).
+        // The search never makes this key: read as a header, 0xABCD has face-set code 3, which
+        // no face set has, and its boundary-length field (0) does not match its bits.
         let key = 0xABCD_u128 << 110 | 12345;
         let mut out = vec![99];
         assert!(!recall(key, &mut out));
