@@ -623,7 +623,7 @@ impl Dual {
                 *k += 1;
             }
         }
-        self.nbr.clear();
+        // Rows are rewritten up to each face's size below, and nothing reads past that.
         self.nbr.resize(f, [u32::MAX; MAX_FACE]);
         for x in 0..f {
             let d = sizes[x] as usize;
@@ -683,9 +683,9 @@ pub(crate) enum Outcome {
 /// Scratch space for reading spirals; reused across starts to avoid allocation.
 #[derive(Debug, Default)]
 pub(crate) struct Reader {
-    visited: Vec<bool>,
-    /// Neighbours of each face not yet visited.
-    rem: Vec<u8>,
+    /// Per face: the number of its neighbours not yet visited, and [`VISITED`] once it is
+    /// visited itself. One byte for both, as a visit updates both for every neighbour.
+    state: Vec<u8>,
     boundary: Vec<u32>,
     pub(crate) order: Vec<u32>,
     /// Starts sorted by their first ring, for [`test_canonical`].
@@ -693,34 +693,39 @@ pub(crate) struct Reader {
     equal: Vec<Start>,
 }
 
+/// The flag in [`Reader::state`] of a visited face (face sizes stay below it).
+const VISITED: u8 = 0x80;
+
 impl Reader {
     /// Plain arrays reset per read: a cage has at most a few hundred faces, and indexing them
     /// directly is cheaper than tagging entries with a read counter.
     fn reset(&mut self, dual: &Dual) {
-        self.visited.clear();
-        self.visited.resize(dual.faces(), false);
-        self.rem.clear();
-        self.rem.extend_from_slice(&dual.size);
+        self.state.clear();
+        self.state.extend_from_slice(&dual.size);
         self.boundary.clear();
         self.order.clear();
     }
 
     fn visited(&self, x: u32) -> bool {
-        self.visited[x as usize]
+        self.state[x as usize] & VISITED != 0
     }
 
     fn rem(&self, x: u32) -> u8 {
-        self.rem[x as usize]
+        self.state[x as usize] & !VISITED
     }
 
     /// Marks `x` visited; returns how many of its neighbours were already visited.
     fn visit(&mut self, dual: &Dual, x: u32) -> usize {
-        self.visited[x as usize] = true;
+        let state = &mut self.state;
+        state[x as usize] |= VISITED;
         self.order.push(x);
         let mut seen = 0;
         for &y in dual.neighbours(x) {
-            self.rem[y as usize] -= 1;
-            seen += usize::from(self.visited[y as usize]);
+            // Every neighbour of y is counted in its remainder until visited, so this never
+            // borrows from the flag.
+            let s = &mut state[y as usize];
+            *s -= 1;
+            seen += usize::from(*s >> 7);
         }
         seen
     }
