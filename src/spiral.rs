@@ -929,16 +929,12 @@ fn test_starts(
             continue;
         }
         let ring = dual.neighbours(f);
-        // The ring's sizes twice over, forwards and backwards, so that the ring read from any
-        // neighbour in either sense is one contiguous slice.
+        // The ring's sizes twice over, forwards and (below, where needed) backwards, so that
+        // the ring read from any neighbour in either sense is one contiguous slice.
         let mut forward = [0u8; 2 * MAX_FACE];
-        let mut backward = [0u8; 2 * MAX_FACE];
         for (i, &g) in ring.iter().enumerate() {
-            let s = dual.size[g as usize];
-            forward[i] = s;
-            forward[i + d] = s;
-            backward[d - 1 - i] = s;
-            backward[2 * d - 1 - i] = s;
+            forward[i] = dual.size[g as usize];
+            forward[i + d] = forward[i];
         }
         // A cage has more faces than any face has neighbours; `n` only guards the slice.
         let n = d.min(sizes.len() - 1);
@@ -972,6 +968,10 @@ fn test_starts(
                 }
                 continue;
             }
+        }
+        let mut backward = [0u8; 2 * MAX_FACE];
+        for i in 0..2 * d {
+            backward[2 * d - 1 - i] = forward[i];
         }
         for pos in 0..d {
             for (sense, terms) in [
@@ -1241,18 +1241,10 @@ mod tests {
                 .map(|&f| u32::from(w.valency[f as usize]))
                 .sum()
         };
-        let spec = crate::enumerate::Spec::fullerene(44, false).unwrap();
-        let mut spirals = Vec::new();
-        crate::enumerate::enumerate(
-            &spec,
-            &Default::default(),
-            |_, _| {},
-            |iso| spirals.push(iso.spiral),
-        )
-        .unwrap();
+        let spirals = crate::enumerate::fullerene_spirals(44);
         let mut failures = 0;
         for spiral in &spirals {
-            let mut w = Winder::new(spec.faces(), false);
+            let mut w = Winder::new(spiral.sizes().len(), false);
             for &size in spiral.sizes() {
                 // Try the other size first: it often fails, and must leave no trace.
                 let other = if size == 5 { 6 } else { 5 };

@@ -735,6 +735,20 @@ pub fn list_number_of(spiral: &Spiral, ipr: bool) -> Result<Option<u64>, Enumera
     Ok(hit)
 }
 
+/// Every canonical spiral of the fullerenes with `atoms` carbons, on one thread (unit tests of
+/// other modules use these as their cages).
+#[cfg(test)]
+pub(crate) fn fullerene_spirals(atoms: u64) -> Vec<Spiral> {
+    let spec = Spec::fullerene(atoms, false).expect("valid size");
+    let opts = Options {
+        threads: 1,
+        shard: None,
+    };
+    let mut out = Vec::new();
+    enumerate(&spec, &opts, |_, _| {}, |iso| out.push(iso.spiral)).expect("enumeration runs");
+    out
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;

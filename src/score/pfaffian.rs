@@ -478,7 +478,7 @@ pub(crate) fn abs_from_residues(residues: &[u64], primes: &[u64]) -> BigUint {
 mod tests {
     use super::*;
     use crate::cage::Cage;
-    use crate::enumerate::{self, Options, Spec};
+    use crate::enumerate;
     use crate::score::kekule::kasteleyn_matrix;
     use crate::spiral::Spiral;
     use proptest::prelude::*;
@@ -619,22 +619,12 @@ mod tests {
     }
 
     fn isomers_up_to(max: u64) -> Vec<Cage> {
-        let mut out = Vec::new();
-        for atoms in (20..=max).step_by(2).filter(|&n| n != 22) {
-            let spec = Spec::fullerene(atoms, false).expect("valid size");
-            let opts = Options {
-                threads: 1,
-                shard: None,
-            };
-            enumerate::enumerate(
-                &spec,
-                &opts,
-                |_, _| {},
-                |iso| out.push(iso.spiral.to_cage()),
-            )
-            .expect("enumeration runs");
-        }
-        out
+        (20..=max)
+            .step_by(2)
+            .filter(|&n| n != 22)
+            .flat_map(enumerate::fullerene_spirals)
+            .map(|spiral| spiral.to_cage())
+            .collect()
     }
 
     fn c60() -> Cage {
