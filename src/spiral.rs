@@ -1294,4 +1294,42 @@ mod tests {
         assert_eq!(pentagon_ring_code(&[5, 6, 6, 6]), None);
         assert_eq!(pentagon_ring_code(&[5, 6, 7, 6, 6]), None);
     }
+
+    /// Why the enumerator does not prune a prefix as soon as a pentagon closed inside it has a
+    /// smaller ring than the first face's: the smaller start can jam later, and then the
+    /// sequence may still be canonical. For every C60 isomer, each pentagon start whose first
+    /// ring is smaller than the canonical spiral's must jam (else the canonical spiral would be
+    /// wrong), and some isomers do have such starts (measured: 10 of 1,812), so the cut would
+    /// lose them.
+    #[test]
+    fn starts_with_a_smaller_first_ring_jam_and_would_make_a_ring_cut_lose_cages() {
+        let mut reader = Reader::default();
+        let mut cages_with_a_jamming_smaller_ring = 0;
+        for spiral in crate::enumerate::fullerene_spirals(60) {
+            let sizes = spiral.sizes();
+            let dual = Dual::from_triangles(sizes, &wind_triangles(sizes, false).unwrap());
+            let mut found = false;
+            for start in dual.starts_of_size(5).collect::<Vec<_>>() {
+                let ring = dual.neighbours(start.first.0);
+                let pos = ring.iter().position(|&g| g == start.second.0).unwrap();
+                let first_ring: Vec<u8> = (0..5)
+                    .map(|i| match start.sense {
+                        Sense::Anticlockwise => ring[(pos + i) % 5],
+                        Sense::Clockwise => ring[(pos + 5 - i) % 5],
+                    })
+                    .map(|g| dual.size[g as usize])
+                    .collect();
+                if first_ring.as_slice() < &sizes[1..6] {
+                    assert_eq!(
+                        reader.read(&dual, start, Some(sizes)),
+                        Outcome::Jam,
+                        "{spiral}: a start with a smaller first ring completes"
+                    );
+                    found = true;
+                }
+            }
+            cages_with_a_jamming_smaller_ring += usize::from(found);
+        }
+        assert!(cages_with_a_jamming_smaller_ring > 0);
+    }
 }
