@@ -303,6 +303,13 @@ impl Winder {
         &self.triangles
     }
 
+    /// Size of the earliest open face, which the next face will join (`None` once closed).
+    pub(crate) fn earliest_open_size(&self) -> Option<u8> {
+        self.boundary
+            .get(self.head)
+            .map(|&f| self.sizes[f as usize])
+    }
+
     /// Sum of the free valencies of the open boundary faces (the length of the patch's
     /// boundary circuit in the primal graph).
     pub(crate) fn open_valency(&self) -> u32 {

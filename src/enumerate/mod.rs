@@ -294,6 +294,17 @@ struct Search<'a> {
     dual: Dual,
     rotation_scratch: RotationScratch,
     total: usize,
+    /// An IPR fullerene run, where [`pentagons_fit`] bounds the pentagons still to come
+    /// (except while cutting units, see [`units`]).
+    isolated: bool,
+}
+
+/// With isolated pentagons, at most this many of the `r` faces still to come can be pentagons:
+/// each face of a spiral is joined to the one before it, so no two of them are consecutive,
+/// and when the face the next one joins (the one just placed, or the earliest open face) is a
+/// pentagon, the next one is not (curvature left counts pentagons left in a fullerene).
+fn pentagons_fit(r: usize, pentagons: u32, next_touches_pentagon: bool) -> bool {
+    pentagons as usize <= (r + usize::from(!next_touches_pentagon)) / 2
 }
 
 impl<'a> Search<'a> {
@@ -307,6 +318,7 @@ impl<'a> Search<'a> {
             dual: Dual::from_triangles(&[], &[]),
             rotation_scratch: RotationScratch::default(),
             total,
+            isolated: spec.ipr && spec.face_set == FaceSet::Fullerene,
         }
     }
 
@@ -330,13 +342,20 @@ impl<'a> Search<'a> {
         let k = self.winder.sizes().len();
         let left = 12 - used;
         let c = 6 - s as u32;
-        if c > left || !self.budget.feasible(self.total - k - 1, left - c) {
+        let r = self.total - k - 1;
+        if c > left || !self.budget.feasible(r, left - c) {
+            return false;
+        }
+        if self.isolated && !pentagons_fit(r, left - c, s == 5) {
             return false;
         }
         if self.winder.push(s).is_err() {
             return false;
         }
-        if self.can_close(left - c) {
+        // The head may have changed: a pentagon there also keeps the next face a hexagon.
+        let head_pentagon = self.isolated && self.winder.earliest_open_size() == Some(5);
+        let fits = !head_pentagon || pentagons_fit(r, left - c, true);
+        if fits && self.can_close(left - c) {
             true
         } else {
             self.winder.pop();
@@ -509,6 +528,10 @@ fn has_adjacent_pentagons(sizes: &[u8], triangles: &[[u32; 3]]) -> bool {
 /// [`TARGET_UNITS`] units (or the whole sequence is reached), so the list depends on `spec` only.
 pub fn units(spec: &Spec) -> Vec<Unit> {
     let mut search = Search::new(spec);
+    // Catalogues and shards record units by index, so the unit list must stay as it was when
+    // they were written: the isolated-pentagon bound, added later, only prunes below the units
+    // (a unit it rules out runs empty).
+    search.isolated = false;
     // Level by level, keeping each prefix wound: the top of the tree is searched once, however
     // deep the cut ends up (IPR trees are narrow, so the cut can be thirty faces down).
     let mut level = vec![Winder::new(spec.faces(), spec.ipr)];
