@@ -51,6 +51,7 @@ impl Shard {
     /// Doubles the table, moving every entry to its new place.
     fn grow(&mut self) {
         let doubled = vec![[0; 3]; 2 * self.slots.len()];
+        advise_huge_pages(&doubled);
         let old = std::mem::replace(&mut self.slots, doubled);
         for slot in old {
             if slot[..2] != [0, 0] {
@@ -67,6 +68,35 @@ impl Shard {
         self.codes.clear();
     }
 }
+
+/// Asks Linux to back a large table with 2 MB pages. Lookups land on random slots of a few
+/// hundred megabytes, so with 4 KB pages nearly every one also misses the TLB; with huge pages
+/// IPR C110 ran 7-8 % faster (docs/performance.md). Advice only: if the kernel declines,
+/// nothing changes but speed.
+#[cfg(target_os = "linux")]
+fn advise_huge_pages(slots: &[Slot]) {
+    const PAGE: usize = 4096;
+    const HUGE_PAGE: usize = 2 << 20;
+    let start = slots.as_ptr() as usize;
+    let end = start + std::mem::size_of_val(slots);
+    let first = start.next_multiple_of(PAGE);
+    let last = end / PAGE * PAGE;
+    if last > first + HUGE_PAGE {
+        // SAFETY: [first, last) is page-aligned and lies inside the live allocation `slots`;
+        // MADV_HUGEPAGE changes only how the kernel backs those pages, never their contents,
+        // and its result is ignored because the advice is optional.
+        unsafe {
+            libc::madvise(
+                first as *mut libc::c_void,
+                last - first,
+                libc::MADV_HUGEPAGE,
+            );
+        }
+    }
+}
+
+#[cfg(not(target_os = "linux"))]
+fn advise_huge_pages(_slots: &[Slot]) {}
 
 static STORE: OnceLock<Vec<Mutex<Shard>>> = OnceLock::new();
 
