@@ -71,7 +71,7 @@ impl Shard {
 
 /// Asks Linux to back a large table with 2 MB pages. Lookups land on random slots of a few
 /// hundred megabytes, so with 4 KB pages nearly every one also misses the TLB; with huge pages
-/// IPR C110 ran 7-8 % faster (docs/performance.md). Advice only: if the kernel declines,
+/// IPR C120 ran 11-19 % faster in two interleaved pairs (docs/performance.md). Advice only: if the kernel declines,
 /// nothing changes but speed.
 #[cfg(target_os = "linux")]
 fn advise_huge_pages(slots: &[Slot]) {
