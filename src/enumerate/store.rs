@@ -8,12 +8,14 @@
 
 use std::sync::{Mutex, MutexGuard, OnceLock};
 
-/// Bounds on the store (peak process memory up to about 600 MB); a shard is emptied when it
-/// reaches its part of either. All C100 on 2 threads took 151 s with 2^21 boundaries, 121 s
-/// with 2^22, 103 s with 2^23 and 115 s with 2^24 (0.17, 0.31, 0.61 and 0.91 GB peak;
-/// docs/performance.md): beyond 2^23 the larger table costs more in cache misses than its
-/// extra hits save.
-const MAX_BOUNDARIES: usize = 1 << 23;
+/// Bounds on the store (peak process memory up to about 1 GB); a shard is emptied when it
+/// reaches its part of either. On 4 KB pages, all C100 on 2 threads took 151 s with 2^21
+/// boundaries, 121 s with 2^22, 103 s with 2^23 and 115 s with 2^24 (0.17, 0.31, 0.61 and
+/// 0.91 GB peak): the larger table cost more in TLB and cache misses than its hits saved. On
+/// 2 MB pages (see [`advise_huge_pages`]) 2^24 is the faster: all C100 135.7 s against 149.1 s,
+/// IPR C120 75.1 / 79.7 s against 85.4 / 82.4 s (interleaved, 0.99 and 0.82 GB peak;
+/// docs/performance.md).
+const MAX_BOUNDARIES: usize = 1 << 24;
 const MAX_CODES: usize = 1 << 25;
 const SHARDS: usize = 64;
 /// Slots per shard: a table starts small and doubles when half full, up to twice the boundaries
