@@ -73,8 +73,8 @@ impl Shard {
 
 /// Asks Linux to back a large table with 2 MB pages. Lookups land on random slots of a few
 /// hundred megabytes, so with 4 KB pages nearly every one also misses the TLB; with huge pages
-/// IPR C120 ran 11-19 % faster in two interleaved pairs (docs/performance.md). Advice only: if the kernel declines,
-/// nothing changes but speed.
+/// IPR C120 ran 11-19 % faster in two interleaved pairs (docs/performance.md). Advice only: if
+/// the kernel declines, nothing changes but speed.
 #[cfg(target_os = "linux")]
 fn advise_huge_pages(slots: &[Slot]) {
     const PAGE: usize = 4096;
@@ -118,8 +118,13 @@ fn hash(parts: [u64; 2]) -> u64 {
 fn shard(hash: u64) -> MutexGuard<'static, Shard> {
     let shards = STORE.get_or_init(|| (0..SHARDS).map(|_| Mutex::default()).collect());
     // The top bits pick the shard and the low bits the slot, so the two stay independent.
-    // A panic elsewhere cannot leave a shard inconsistent: ranges are stored after their codes.
-    shards[(hash >> 58) as usize % SHARDS]
+    lock(&shards[(hash >> 58) as usize % SHARDS])
+}
+
+/// A panic elsewhere cannot leave a shard inconsistent (ranges are stored after their codes),
+/// so a poisoned lock is taken as it is.
+fn lock(shard: &Mutex<Shard>) -> MutexGuard<'_, Shard> {
+    shard
         .lock()
         .unwrap_or_else(|poisoned| poisoned.into_inner())
 }
@@ -174,10 +179,7 @@ pub(super) fn remember(key: u128, codes: &[u32]) {
 pub(super) fn forget() {
     if let Some(shards) = STORE.get() {
         for shard in shards {
-            shard
-                .lock()
-                .unwrap_or_else(|poisoned| poisoned.into_inner())
-                .clear();
+            lock(shard).clear();
         }
     }
 }
