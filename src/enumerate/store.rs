@@ -108,9 +108,20 @@ fn split_key(key: u128) -> ([u64; 2], u64) {
     (parts, hash(parts))
 }
 
-/// Multiply-fold: the keys are dense bit patterns, so a DoS-resistant hash would only cost time.
+/// Key bits left out of the hash: the free valencies of the newest three boundary faces (two
+/// and a half with IPR flags). Boundaries looked up one after another (siblings and cousins in
+/// the search) differ mostly there, so they land in neighbouring slots and one cache miss often
+/// serves several lookups; the full key is still compared. Interleaved on 2 threads: all C90
+/// 34.0 / 35.7 s against 39.4 / 40.1 s, all C80 about 7 % faster; IPR C110 within the noise.
+/// Leaving out 22 bits was slower (the groups sharing a slot grow too long).
+const NEAR_BITS: u32 = 10;
+
+/// Multiply-fold of the key without its [`NEAR_BITS`]: the keys are dense bit patterns, so a
+/// DoS-resistant hash would only cost time.
 fn hash(parts: [u64; 2]) -> u64 {
-    let mut h = (parts[0] ^ parts[1].rotate_left(29)).wrapping_mul(0x9E37_79B9_7F4A_7C15);
+    let key = (u128::from(parts[1]) << 64 | u128::from(parts[0])) >> NEAR_BITS;
+    let (low, high) = (key as u64, (key >> 64) as u64);
+    let mut h = (low ^ high.rotate_left(29)).wrapping_mul(0x9E37_79B9_7F4A_7C15);
     h ^= h >> 32;
     h.wrapping_mul(0x9E37_79B9_7F4A_7C15)
 }
