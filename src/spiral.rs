@@ -698,6 +698,9 @@ pub(crate) struct Reader {
     /// Starts sorted by their first ring, for [`test_canonical`].
     smaller: Vec<Start>,
     equal: Vec<Start>,
+    /// The start that showed the previous sequence not canonical, tried first by
+    /// [`test_canonical`].
+    rejector: Option<Start>,
 }
 
 /// The flag in [`Reader::state`] of a visited face (face sizes stay below it).
@@ -850,6 +853,18 @@ pub(crate) enum Canonicity {
 /// Tests whether `sizes` (which wound into `dual`) is the canonical spiral of its cage, trying
 /// only starts whose first face is no larger than the sequence's first face.
 pub(crate) fn test_canonical(dual: &Dual, sizes: &[u8], reader: &mut Reader) -> Canonicity {
+    // Consecutive sequences of the search share all but their last faces, and a face's id is
+    // its position in the sequence, so the start that disqualified the previous sequence
+    // usually disqualifies this one as well. Any start whose spiral completes smaller proves
+    // the sequence not canonical, so trying it first is exact, and when it works the starts
+    // need not be sorted at all (that sorting was a tenth of all C80's time).
+    if let Some(start) = reader.rejector {
+        if (start.first.0 as usize) < dual.faces()
+            && reader.read(dual, start, Some(sizes)) == Outcome::Smaller
+        {
+            return Canonicity::NotCanonical;
+        }
+    }
     // A spiral's first terms are its first face and that face's ring of neighbours, so most
     // starts are settled without reading: a larger ring can only give a larger spiral. Starts
     // with a smaller ring are read first because they usually disqualify the sequence at once
@@ -995,13 +1010,17 @@ fn test_starts(
     }
     for &start in smaller.iter() {
         if reader.read(dual, start, Some(sizes)) == Outcome::Smaller {
+            reader.rejector = Some(start);
             return Canonicity::NotCanonical;
         }
     }
     let mut automorphisms = 0;
     for &start in equal.iter() {
         match reader.read(dual, start, Some(sizes)) {
-            Outcome::Smaller => return Canonicity::NotCanonical,
+            Outcome::Smaller => {
+                reader.rejector = Some(start);
+                return Canonicity::NotCanonical;
+            }
             Outcome::Equal => automorphisms += 1,
             Outcome::Larger | Outcome::Jam => {}
         }
