@@ -261,6 +261,19 @@ struct Frame {
     open: u32,
 }
 
+impl Frame {
+    const EMPTY: Frame = Frame {
+        triangles: 0,
+        head: 0,
+        popped: [0; MAX_FACE],
+        n_popped: 0,
+        pushed: false,
+        connected: [0; MAX_FACE],
+        n_connected: 0,
+        open: 0,
+    };
+}
+
 /// Incremental spiral winding with undo, shared by [`Spiral::from_sizes`] and the enumerator.
 ///
 /// The open boundary of the patch is a cyclic list of faces `boundary[head..]`; the new face is
@@ -275,6 +288,9 @@ pub(crate) struct Winder {
     boundary: Vec<u32>,
     head: usize,
     triangles: Vec<[u32; 3]>,
+    /// One undo record per face, allocated up front: `frames[k]` belongs to face k while it is
+    /// wound. A push writes only the fields it needs (building a whole record and copying it in
+    /// was a measurable part of winding).
     frames: Vec<Frame>,
     /// Sum of the free valencies of the open boundary faces, kept as faces come and go.
     open: u32,
@@ -290,7 +306,7 @@ impl Winder {
             boundary: Vec::with_capacity(total_faces),
             head: 0,
             triangles: Vec::with_capacity(2 * total_faces),
-            frames: Vec::with_capacity(total_faces),
+            frames: vec![Frame::EMPTY; total_faces],
             open: 0,
         }
     }
@@ -347,17 +363,13 @@ impl Winder {
         if !(3..=MAX_FACE as u8).contains(&size) || k >= self.total {
             return Err(WindError::BadSize { position: k, size });
         }
-        let frame = Frame {
-            triangles: self.triangles.len() as u32,
-            head: self.head as u32,
-            popped: [0; MAX_FACE],
-            n_popped: 0,
-            pushed: false,
-            connected: [0; MAX_FACE],
-            n_connected: 0,
-            open: self.open,
-        };
-        self.frames.push(frame);
+        let frame = &mut self.frames[k];
+        frame.triangles = self.triangles.len() as u32;
+        frame.head = self.head as u32;
+        frame.n_popped = 0;
+        frame.pushed = false;
+        frame.n_connected = 0;
+        frame.open = self.open;
         self.sizes.push(size);
         self.valency.push(size);
         let result = if k == 0 {
@@ -376,7 +388,7 @@ impl Winder {
             Ok(()) => {
                 // Each join takes one free edge from the new face and one from an open face;
                 // faces closed by it leave the boundary with none left.
-                let joins = self.frames.last().expect("pushed above").n_connected as u32;
+                let joins = self.frames[k].n_connected as u32;
                 self.open = self.open + size as u32 - 2 * joins;
             }
             Err(_) => self.pop(),
@@ -386,7 +398,8 @@ impl Winder {
 
     /// Removes the last face added.
     pub(crate) fn pop(&mut self) {
-        let frame = self.frames.pop().expect("pop matches a push");
+        let k = self.sizes.len().checked_sub(1).expect("pop matches a push");
+        let frame = &self.frames[k];
         for &c in &frame.connected[..frame.n_connected as usize] {
             self.valency[c as usize] += 1;
         }
@@ -406,10 +419,7 @@ impl Winder {
     /// Appends the newest face to the boundary, recording it for undo.
     fn append(&mut self, face: u32) {
         self.boundary.push(face);
-        self.frames
-            .last_mut()
-            .expect("append runs inside push")
-            .pushed = true;
+        self.frames[face as usize].pushed = true;
     }
 
     /// Joins the newest face `k` to face `other`, recording it for undo.
@@ -427,7 +437,7 @@ impl Winder {
         {
             return Err(WindError::AdjacentPentagons { position });
         }
-        let frame = self.frames.last_mut().expect("connect runs inside push");
+        let frame = &mut self.frames[position];
         if frame.connected[..frame.n_connected as usize].contains(&other) {
             return Err(WindError::Jam { position });
         }
@@ -463,7 +473,7 @@ impl Winder {
                     return Err(WindError::ClosedEarly { position: k });
                 }
                 let gone = self.boundary.pop().expect("boundary has faces");
-                let frame = self.frames.last_mut().expect("attach runs inside push");
+                let frame = &mut self.frames[k];
                 frame.popped[frame.n_popped as usize] = gone;
                 frame.n_popped += 1;
                 let next = *self.boundary.last().expect("boundary has faces");
@@ -483,16 +493,20 @@ impl Winder {
 
     fn attach_last(&mut self, k: usize) -> Result<(), WindError> {
         let kk = k as u32;
-        let hole: Vec<u32> = self.boundary[self.head..].to_vec();
-        if hole.len() != self.sizes[k] as usize
-            || hole.iter().any(|&f| self.valency[f as usize] != 1)
+        let open = &self.boundary[self.head..];
+        if open.len() != self.sizes[k] as usize
+            || open.iter().any(|&f| self.valency[f as usize] != 1)
         {
             return Err(WindError::LastFace {
                 expected: self.sizes[k] as usize,
-                hole: hole.len(),
+                hole: open.len(),
             });
         }
-        for &f in &hole {
+        // Copied out (a face has at most MAX_FACE sides) because joining needs `self` mutably.
+        let mut ring = [0u32; MAX_FACE];
+        ring[..open.len()].copy_from_slice(open);
+        let hole = &ring[..open.len()];
+        for &f in hole {
             self.connect(kk, f)?;
         }
         for i in 0..hole.len() {
