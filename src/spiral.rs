@@ -288,9 +288,9 @@ pub(crate) struct Winder {
     boundary: Vec<u32>,
     head: usize,
     triangles: Vec<[u32; 3]>,
-    /// One undo record per face, allocated up front: `frames[k]` belongs to face k while it is
-    /// wound. A push writes only the fields it needs (building a whole record and copying it in
-    /// was a measurable part of winding).
+    /// One undo record per face: `frames[k]` belongs to face k while it is wound. Records stay
+    /// after a pop for the next push to reuse, which writes only the fields it needs (building a
+    /// whole record and copying it in was a measurable part of winding).
     frames: Vec<Frame>,
     /// Sum of the free valencies of the open boundary faces, kept as faces come and go.
     open: u32,
@@ -306,7 +306,7 @@ impl Winder {
             boundary: Vec::with_capacity(total_faces),
             head: 0,
             triangles: Vec::with_capacity(2 * total_faces),
-            frames: vec![Frame::EMPTY; total_faces],
+            frames: Vec::with_capacity(total_faces),
             open: 0,
         }
     }
@@ -362,6 +362,9 @@ impl Winder {
         let k = self.sizes.len();
         if !(3..=MAX_FACE as u8).contains(&size) || k >= self.total {
             return Err(WindError::BadSize { position: k, size });
+        }
+        if self.frames.len() == k {
+            self.frames.push(Frame::EMPTY);
         }
         let frame = &mut self.frames[k];
         frame.triangles = self.triangles.len() as u32;
