@@ -8,7 +8,7 @@
 
 use std::sync::{Mutex, MutexGuard, OnceLock};
 
-/// Bounds on the store (peak process memory up to about 1 GB); a shard is emptied when it
+/// Bounds on the store (peak process memory up to about 1.2 GB); a shard is emptied when it
 /// reaches its part of either. On 4 KB pages, all C100 on 2 threads took 151 s with 2^21
 /// boundaries, 121 s with 2^22, 103 s with 2^23 and 115 s with 2^24 (0.17, 0.31, 0.61 and
 /// 0.91 GB peak): the larger table cost more in TLB and cache misses than its hits saved. On
