@@ -872,9 +872,10 @@ pub(crate) enum Canonicity {
 pub(crate) fn test_canonical(dual: &Dual, sizes: &[u8], reader: &mut Reader) -> Canonicity {
     // Consecutive sequences of the search share their first faces (about half of them for
     // C70), and a face's id is its position in the sequence, so the start that disqualified
-    // the previous sequence usually disqualifies this one as well. Any start whose spiral completes smaller proves
-    // the sequence not canonical, so trying it first is exact, and when it works the starts
-    // need not be sorted at all (that sorting was a tenth of all C80's time).
+    // the previous sequence usually disqualifies this one as well. Any start whose spiral
+    // completes smaller proves the sequence not canonical, so trying it first is exact, and
+    // when it works the starts need not be sorted at all (that sorting was a tenth of all
+    // C80's time).
     if let Some(start) = reader.rejector {
         if (start.first.0 as usize) < dual.faces()
             && reader.read(dual, start, Some(sizes)) == Outcome::Smaller

@@ -57,8 +57,8 @@ impl Shard {
         let old = std::mem::replace(&mut self.slots, doubled);
         for slot in old {
             if slot[..2] != [0, 0] {
-                let parts = [slot[0], slot[1]];
-                let i = self.probe(parts, hash(parts));
+                let (parts, hash) = split_key(u128::from(slot[1]) << 64 | u128::from(slot[0]));
+                let i = self.probe(parts, hash);
                 self.slots[i] = slot;
             }
         }
@@ -105,7 +105,7 @@ static STORE: OnceLock<Vec<Mutex<Shard>>> = OnceLock::new();
 /// The key's halves and its hash.
 fn split_key(key: u128) -> ([u64; 2], u64) {
     let parts = [key as u64, (key >> 64) as u64];
-    (parts, hash(parts))
+    (parts, hash(key))
 }
 
 /// Key bits left out of the hash: the free valencies of the newest three boundary faces (two
@@ -118,8 +118,8 @@ const NEAR_BITS: u32 = 10;
 
 /// Multiply-fold of the key without its [`NEAR_BITS`]: the keys are dense bit patterns, so a
 /// DoS-resistant hash would only cost time.
-fn hash(parts: [u64; 2]) -> u64 {
-    let key = (u128::from(parts[1]) << 64 | u128::from(parts[0])) >> NEAR_BITS;
+fn hash(key: u128) -> u64 {
+    let key = key >> NEAR_BITS;
     let (low, high) = (key as u64, (key >> 64) as u64);
     let mut h = (low ^ high.rotate_left(29)).wrapping_mul(0x9E37_79B9_7F4A_7C15);
     h ^= h >> 32;
