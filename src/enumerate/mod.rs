@@ -26,8 +26,7 @@ mod store;
 
 use crate::cage::FaceSet;
 use crate::spiral::{
-    check_fullerene_atoms, test_canonical, Canonicity, Dual, Reader, RotationScratch, Spiral,
-    SpiralError, Winder,
+    check_fullerene_atoms, test_canonical, Canonicity, Dual, Reader, Spiral, SpiralError, Winder,
 };
 use rayon::prelude::*;
 use std::cell::RefCell;
@@ -301,7 +300,6 @@ struct Search<'a> {
     reader: Reader,
     /// Scratch for the dual of each completed sequence.
     dual: Dual,
-    rotation_scratch: RotationScratch,
     total: usize,
     /// An IPR fullerene run, where [`pentagons_fit`] bounds the pentagons still to come
     /// (except while cutting units, see [`units`]).
@@ -325,7 +323,6 @@ impl<'a> Search<'a> {
             winder: Winder::new(total, spec.ipr),
             reader: Reader::default(),
             dual: Dual::from_triangles(&[], &[]),
-            rotation_scratch: RotationScratch::default(),
             total,
             isolated: spec.ipr && spec.face_set == FaceSet::Fullerene,
         }
@@ -510,8 +507,7 @@ impl<'a> Search<'a> {
 
     fn leaf(&mut self, out: &mut Vec<Found>) {
         let sizes = self.winder.sizes();
-        self.dual
-            .rebuild(sizes, self.winder.triangles(), &mut self.rotation_scratch);
+        self.dual.assign(sizes, self.winder.rotations());
         if let Canonicity::Canonical { automorphisms } =
             test_canonical(&self.dual, sizes, &mut self.reader)
         {
