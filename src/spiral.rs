@@ -292,6 +292,8 @@ pub(crate) struct Winder {
     boundary: Vec<u32>,
     head: usize,
     triangles: Vec<[u32; 3]>,
+    /// Whether `triangles` is kept: the enumerator reads `rotation` instead and leaves it out.
+    keep_triangles: bool,
     /// One undo record per face: `frames[k]` belongs to face k while it is wound. Records stay
     /// after a pop for the next push to reuse, which writes only the fields it needs (building a
     /// whole record and copying it in was a measurable part of winding).
@@ -321,6 +323,7 @@ impl Winder {
             boundary: Vec::with_capacity(total_faces),
             head: 0,
             triangles: Vec::with_capacity(2 * total_faces),
+            keep_triangles: true,
             frames: Vec::with_capacity(total_faces),
             open: 0,
             rotation: vec![[u32::MAX; MAX_FACE]; total_faces],
@@ -332,8 +335,22 @@ impl Winder {
         &self.sizes
     }
 
+    /// The atoms so far as oriented triangles of faces (empty if not kept).
+    #[cfg(test)]
     pub(crate) fn triangles(&self) -> &[[u32; 3]] {
         &self.triangles
+    }
+
+    /// This winder without its list of triangles, which the enumerator does not need.
+    pub(crate) fn without_triangles(mut self) -> Winder {
+        self.keep_triangles = false;
+        self
+    }
+
+    fn add_triangle(&mut self, triangle: [u32; 3]) {
+        if self.keep_triangles {
+            self.triangles.push(triangle);
+        }
     }
 
     /// Each wound face's neighbours in rotation order; complete for closed faces, so for
@@ -382,6 +399,18 @@ impl Winder {
 
     /// Adds the next face; on error the state is left as before the call.
     pub(crate) fn push(&mut self, size: u8) -> Result<(), WindError> {
+        self.push_with::<true>(size)
+    }
+
+    /// Adds a face known to wind, because it wound before onto a boundary that winds the same
+    /// way (the enumerator's replays): the checks that cannot fail are left out, except in
+    /// debug builds.
+    pub(crate) fn push_known(&mut self, size: u8) {
+        let wound = self.push_with::<{ cfg!(debug_assertions) }>(size);
+        debug_assert!(wound.is_ok(), "a known face winds");
+    }
+
+    fn push_with<const CHECKED: bool>(&mut self, size: u8) -> Result<(), WindError> {
         let k = self.sizes.len();
         if !(3..=MAX_FACE as u8).contains(&size) || k >= self.total {
             return Err(WindError::BadSize { position: k, size });
@@ -406,11 +435,12 @@ impl Winder {
             self.append(0);
             Ok(())
         } else if k == 1 {
-            self.connect(1, 0, false).map(|()| self.append(1))
+            self.connect::<CHECKED>(1, 0, false)
+                .map(|()| self.append(1))
         } else if k + 1 < self.total {
-            self.attach_middle(k)
+            self.attach_middle::<CHECKED>(k)
         } else {
-            self.attach_last(k)
+            self.attach_last::<CHECKED>(k)
         };
         match result {
             Ok(()) => {
@@ -457,24 +487,32 @@ impl Winder {
     /// Joins the newest face `k` to face `other`, recording it for undo; `other` goes to the
     /// backward end of k's row if `own_back`, and k to the opposite end of other's row.
     #[inline(always)]
-    fn connect(&mut self, k: u32, other: u32, own_back: bool) -> Result<(), WindError> {
+    fn connect<const CHECKED: bool>(
+        &mut self,
+        k: u32,
+        other: u32,
+        own_back: bool,
+    ) -> Result<(), WindError> {
         let position = k as usize;
-        if self.valency[position] == 0 {
-            return Err(WindError::Overfull { position });
-        }
-        if self.valency[other as usize] == 0 {
-            return Err(WindError::Jam { position });
-        }
-        if self.forbid_adjacent_pentagons
-            && self.sizes[position] == 5
-            && self.sizes[other as usize] == 5
-        {
-            return Err(WindError::AdjacentPentagons { position });
+        if CHECKED {
+            if self.valency[position] == 0 {
+                return Err(WindError::Overfull { position });
+            }
+            if self.valency[other as usize] == 0 {
+                return Err(WindError::Jam { position });
+            }
+            if self.forbid_adjacent_pentagons
+                && self.sizes[position] == 5
+                && self.sizes[other as usize] == 5
+            {
+                return Err(WindError::AdjacentPentagons { position });
+            }
+            let frame = &self.frames[position];
+            if frame.connected[..frame.n_connected as usize].contains(&other) {
+                return Err(WindError::Jam { position });
+            }
         }
         let frame = &mut self.frames[position];
-        if frame.connected[..frame.n_connected as usize].contains(&other) {
-            return Err(WindError::Jam { position });
-        }
         let join = frame.n_connected;
         frame.connected[join as usize] = other;
         frame.n_connected += 1;
@@ -521,29 +559,29 @@ impl Winder {
         row[index as usize & (MAX_FACE - 1)] = y;
     }
 
-    fn attach_middle(&mut self, k: usize) -> Result<(), WindError> {
+    fn attach_middle<const CHECKED: bool>(&mut self, k: usize) -> Result<(), WindError> {
         let kk = k as u32;
-        if self.boundary.len() - self.head < 2 {
+        if CHECKED && self.boundary.len() - self.head < 2 {
             return Err(WindError::Jam { position: k });
         }
         let mut first = self.boundary[self.head];
         let mut last = *self.boundary.last().expect("boundary has two faces");
         // Around the new face the head comes just before the previous face.
-        self.connect(kk, last, false)?;
-        self.connect(kk, first, true)?;
-        self.triangles.push([first, last, kk]);
+        self.connect::<CHECKED>(kk, last, false)?;
+        self.connect::<CHECKED>(kk, first, true)?;
+        self.add_triangle([first, last, kk]);
         loop {
             if self.valency[first as usize] == 0 {
-                if self.boundary.len() - self.head <= 2 {
+                if CHECKED && self.boundary.len() - self.head <= 2 {
                     return Err(WindError::ClosedEarly { position: k });
                 }
                 self.head += 1;
                 let next = self.boundary[self.head];
-                self.connect(kk, next, true)?;
-                self.triangles.push([next, first, kk]);
+                self.connect::<CHECKED>(kk, next, true)?;
+                self.add_triangle([next, first, kk]);
                 first = next;
             } else if self.valency[last as usize] == 0 {
-                if self.boundary.len() - self.head <= 2 {
+                if CHECKED && self.boundary.len() - self.head <= 2 {
                     return Err(WindError::ClosedEarly { position: k });
                 }
                 let gone = self.boundary.pop().expect("boundary has faces");
@@ -551,25 +589,26 @@ impl Winder {
                 frame.popped[frame.n_popped as usize] = gone;
                 frame.n_popped += 1;
                 let next = *self.boundary.last().expect("boundary has faces");
-                self.connect(kk, next, false)?;
-                self.triangles.push([kk, last, next]);
+                self.connect::<CHECKED>(kk, next, false)?;
+                self.add_triangle([kk, last, next]);
                 last = next;
             } else {
                 break;
             }
         }
-        if self.valency[k] == 0 {
+        if CHECKED && self.valency[k] == 0 {
             return Err(WindError::ClosedEarly { position: k });
         }
         self.append(kk);
         Ok(())
     }
 
-    fn attach_last(&mut self, k: usize) -> Result<(), WindError> {
+    fn attach_last<const CHECKED: bool>(&mut self, k: usize) -> Result<(), WindError> {
         let kk = k as u32;
         let open = &self.boundary[self.head..];
-        if open.len() != self.sizes[k] as usize
-            || open.iter().any(|&f| self.valency[f as usize] != 1)
+        if CHECKED
+            && (open.len() != self.sizes[k] as usize
+                || open.iter().any(|&f| self.valency[f as usize] != 1))
         {
             return Err(WindError::LastFace {
                 expected: self.sizes[k] as usize,
@@ -583,11 +622,11 @@ impl Winder {
         // The last face's rotation is the hole backwards; each face of the hole has one place
         // left.
         for &f in hole {
-            self.connect(kk, f, true)?;
+            self.connect::<CHECKED>(kk, f, true)?;
         }
         for i in 0..hole.len() {
             let (x, y) = (hole[i], hole[(i + 1) % hole.len()]);
-            self.triangles.push([y, x, kk]);
+            self.add_triangle([y, x, kk]);
         }
         self.head = self.boundary.len();
         Ok(())
@@ -749,6 +788,17 @@ impl Dual {
 
     pub(crate) fn faces(&self) -> usize {
         self.size.len()
+    }
+
+    /// True if two pentagons share an edge.
+    pub(crate) fn pentagons_touch(&self) -> bool {
+        (0..self.faces() as u32).any(|x| {
+            self.size[x as usize] == 5
+                && self
+                    .neighbours(x)
+                    .iter()
+                    .any(|&y| self.size[y as usize] == 5)
+        })
     }
 
     fn neighbours(&self, x: u32) -> &[u32] {

@@ -320,7 +320,7 @@ impl<'a> Search<'a> {
         Search {
             spec,
             budget: Budget::new(spec.face_set, total),
-            winder: Winder::new(total, spec.ipr),
+            winder: Winder::new(total, spec.ipr).without_triangles(),
             reader: Reader::default(),
             dual: Dual::from_triangles(&[], &[]),
             total,
@@ -491,8 +491,7 @@ impl<'a> Search<'a> {
             }
             for i in keep..r {
                 let s = sizes[(code >> (2 * i) & 3) as usize];
-                let wound_again = self.winder.push(s);
-                debug_assert!(wound_again.is_ok(), "a remembered completion winds again");
+                self.winder.push_known(s);
             }
             wound = r;
             previous = code;
@@ -511,7 +510,7 @@ impl<'a> Search<'a> {
         if let Canonicity::Canonical { automorphisms } =
             test_canonical(&self.dual, sizes, &mut self.reader)
         {
-            let ipr = self.spec.ipr || !has_adjacent_pentagons(sizes, self.winder.triangles());
+            let ipr = self.spec.ipr || !self.dual.pentagons_touch();
             out.push(Found {
                 spiral: Spiral::from_wound(sizes.to_vec()),
                 automorphisms,
@@ -519,14 +518,6 @@ impl<'a> Search<'a> {
             });
         }
     }
-}
-
-/// True if two pentagons share a dual edge (every dual edge lies in some triangle).
-fn has_adjacent_pentagons(sizes: &[u8], triangles: &[[u32; 3]]) -> bool {
-    let p = |x: u32| sizes[x as usize] == 5;
-    triangles
-        .iter()
-        .any(|&[a, b, c]| (p(a) && p(b)) || (p(b) && p(c)) || (p(c) && p(a)))
 }
 
 /// The units of a run, in spiral order. The cut depth grows until there are at least
@@ -539,7 +530,7 @@ pub fn units(spec: &Spec) -> Vec<Unit> {
     search.isolated = false;
     // Level by level, keeping each prefix wound: the top of the tree is searched once, however
     // deep the cut ends up (IPR trees are narrow, so the cut can be thirty faces down).
-    let mut level = vec![Winder::new(spec.faces(), spec.ipr)];
+    let mut level = vec![Winder::new(spec.faces(), spec.ipr).without_triangles()];
     let mut depth = 0;
     loop {
         if depth >= 2.min(spec.faces()) && (level.len() >= TARGET_UNITS || depth >= spec.faces()) {
