@@ -292,8 +292,8 @@ pub(crate) struct Winder {
     boundary: Vec<u32>,
     head: usize,
     triangles: Vec<[u32; 3]>,
-    /// Whether `triangles` is kept: the enumerator reads `rotation` instead and leaves it out.
-    keep_triangles: bool,
+    /// Whether `triangles` or `rotation` is kept up to date.
+    record: Record,
     /// One undo record per face: `frames[k]` belongs to face k while it is wound. Records stay
     /// after a pop for the next push to reuse, which writes only the fields it needs (building a
     /// whole record and copying it in was a measurable part of winding).
@@ -305,15 +305,28 @@ pub(crate) struct Winder {
     /// face joins the boundary's head (the earliest open face) at one end and its tail (the
     /// previous face) at the other. Entries at the forward end fill a row from index 0 up,
     /// those at the backward end from the face's size down, so a closed face's row is its
-    /// rotation. Kept join by join, so the enumerator reads each completed sequence without
-    /// rebuilding its dual from the triangles (that rebuild was 16 % of all C80's time).
+    /// rotation. Kept join by join (with [`Record::Rotations`]), so the enumerator reads each
+    /// completed sequence without rebuilding its dual from the triangles.
     rotation: Vec<[u32; MAX_FACE]>,
     /// Per face: how many entries its row has at the backward end (the forward end has the
     /// rest of its joins).
     back: Vec<u8>,
 }
 
+/// What a [`Winder`] keeps of the atoms as it goes: the oriented triangles, from which the
+/// cage and the dual are built, or each face's rotation, which is the dual already. Keeping
+/// rotations costs every join a little and saves a rebuild at every completed sequence: for
+/// complete lists, where completed sequences are dense, all C80 ran about 20 % faster with them
+/// (the rebuild was 16 % of its time); IPR runs complete a sequence rarely (leaves under 5 %
+/// of IPR C120's time) and ran slower (69.9 s against 66.0 s), so they keep triangles.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub(crate) enum Record {
+    Triangles,
+    Rotations,
+}
+
 impl Winder {
+    /// A winder that keeps triangles.
     pub(crate) fn new(total_faces: usize, forbid_adjacent_pentagons: bool) -> Winder {
         Winder {
             total: total_faces,
@@ -323,7 +336,7 @@ impl Winder {
             boundary: Vec::with_capacity(total_faces),
             head: 0,
             triangles: Vec::with_capacity(2 * total_faces),
-            keep_triangles: true,
+            record: Record::Triangles,
             frames: Vec::with_capacity(total_faces),
             open: 0,
             rotation: vec![[u32::MAX; MAX_FACE]; total_faces],
@@ -335,27 +348,33 @@ impl Winder {
         &self.sizes
     }
 
-    /// The atoms so far as oriented triangles of faces (empty if not kept).
-    #[cfg(test)]
-    pub(crate) fn triangles(&self) -> &[[u32; 3]] {
-        &self.triangles
-    }
-
-    /// This winder without its list of triangles, which the enumerator does not need.
-    pub(crate) fn without_triangles(mut self) -> Winder {
-        self.keep_triangles = false;
+    /// This (empty) winder keeping `record` instead.
+    pub(crate) fn recording(mut self, record: Record) -> Winder {
+        debug_assert!(self.sizes.is_empty(), "chosen before the first face");
+        self.record = record;
         self
     }
 
+    pub(crate) fn record(&self) -> Record {
+        self.record
+    }
+
+    /// The atoms so far as oriented triangles of faces ([`Record::Triangles`]).
+    pub(crate) fn triangles(&self) -> &[[u32; 3]] {
+        debug_assert_eq!(self.record, Record::Triangles);
+        &self.triangles
+    }
+
     fn add_triangle(&mut self, triangle: [u32; 3]) {
-        if self.keep_triangles {
+        if self.record == Record::Triangles {
             self.triangles.push(triangle);
         }
     }
 
-    /// Each wound face's neighbours in rotation order; complete for closed faces, so for
-    /// every face once the sequence is wound to its end.
+    /// Each wound face's neighbours in rotation order ([`Record::Rotations`]); complete for
+    /// closed faces, so for every face once the sequence is wound to its end.
     pub(crate) fn rotations(&self) -> &[[u32; MAX_FACE]] {
+        debug_assert_eq!(self.record, Record::Rotations);
         &self.rotation[..self.sizes.len()]
     }
 
@@ -516,24 +535,26 @@ impl Winder {
         let join = frame.n_connected;
         frame.connected[join as usize] = other;
         frame.n_connected += 1;
-        frame.other_back |= u8::from(!own_back) << join;
-        Self::place(
-            &mut self.rotation[position],
-            &mut self.back[position],
-            self.sizes[position],
-            self.valency[position],
-            other,
-            own_back,
-        );
         let o = other as usize;
-        Self::place(
-            &mut self.rotation[o],
-            &mut self.back[o],
-            self.sizes[o],
-            self.valency[o],
-            k,
-            !own_back,
-        );
+        if self.record == Record::Rotations {
+            frame.other_back |= u8::from(!own_back) << join;
+            Self::place(
+                &mut self.rotation[position],
+                &mut self.back[position],
+                self.sizes[position],
+                self.valency[position],
+                other,
+                own_back,
+            );
+            Self::place(
+                &mut self.rotation[o],
+                &mut self.back[o],
+                self.sizes[o],
+                self.valency[o],
+                k,
+                !own_back,
+            );
+        }
         self.valency[position] -= 1;
         self.valency[o] -= 1;
         Ok(())
@@ -1599,7 +1620,7 @@ mod tests {
         let mut checked = 0;
         for sizes in &sequences {
             if sizes.len() != previous.len() {
-                winder = Winder::new(sizes.len(), false);
+                winder = Winder::new(sizes.len(), false).recording(Record::Rotations);
                 previous = &[];
             }
             let common = sizes
@@ -1613,7 +1634,7 @@ mod tests {
             for &s in &sizes[winder.sizes().len()..] {
                 winder.push(s).unwrap();
             }
-            let rebuilt = Dual::from_triangles(sizes, winder.triangles());
+            let rebuilt = Dual::from_triangles(sizes, &wind_triangles(sizes, false).unwrap());
             let mut kept = Dual::from_triangles(&[], &[]);
             kept.assign(sizes, winder.rotations());
             for x in 0..sizes.len() as u32 {

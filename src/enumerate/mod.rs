@@ -26,7 +26,8 @@ mod store;
 
 use crate::cage::FaceSet;
 use crate::spiral::{
-    check_fullerene_atoms, test_canonical, Canonicity, Dual, Reader, Spiral, SpiralError, Winder,
+    check_fullerene_atoms, test_canonical, Canonicity, Dual, Reader, Record, RotationScratch,
+    Spiral, SpiralError, Winder,
 };
 use rayon::prelude::*;
 use std::cell::RefCell;
@@ -300,10 +301,21 @@ struct Search<'a> {
     reader: Reader,
     /// Scratch for the dual of each completed sequence.
     dual: Dual,
+    rotation_scratch: RotationScratch,
     total: usize,
     /// An IPR fullerene run, where [`pentagons_fit`] bounds the pentagons still to come
     /// (except while cutting units, see [`units`]).
     isolated: bool,
+}
+
+/// What the search's winders keep (see [`Record`]): rotations where completed sequences are
+/// dense, triangles for IPR runs, which reach one rarely.
+fn record_for(spec: &Spec) -> Record {
+    if spec.ipr {
+        Record::Triangles
+    } else {
+        Record::Rotations
+    }
 }
 
 /// With isolated pentagons, at most this many of the `r` faces still to come can be pentagons:
@@ -320,9 +332,10 @@ impl<'a> Search<'a> {
         Search {
             spec,
             budget: Budget::new(spec.face_set, total),
-            winder: Winder::new(total, spec.ipr).without_triangles(),
+            winder: Winder::new(total, spec.ipr).recording(record_for(spec)),
             reader: Reader::default(),
             dual: Dual::from_triangles(&[], &[]),
+            rotation_scratch: RotationScratch::default(),
             total,
             isolated: spec.ipr && spec.face_set == FaceSet::Fullerene,
         }
@@ -506,7 +519,13 @@ impl<'a> Search<'a> {
 
     fn leaf(&mut self, out: &mut Vec<Found>) {
         let sizes = self.winder.sizes();
-        self.dual.assign(sizes, self.winder.rotations());
+        match self.winder.record() {
+            Record::Rotations => self.dual.assign(sizes, self.winder.rotations()),
+            Record::Triangles => {
+                self.dual
+                    .rebuild(sizes, self.winder.triangles(), &mut self.rotation_scratch)
+            }
+        }
         if let Canonicity::Canonical { automorphisms } =
             test_canonical(&self.dual, sizes, &mut self.reader)
         {
@@ -530,7 +549,7 @@ pub fn units(spec: &Spec) -> Vec<Unit> {
     search.isolated = false;
     // Level by level, keeping each prefix wound: the top of the tree is searched once, however
     // deep the cut ends up (IPR trees are narrow, so the cut can be thirty faces down).
-    let mut level = vec![Winder::new(spec.faces(), spec.ipr).without_triangles()];
+    let mut level = vec![Winder::new(spec.faces(), spec.ipr).recording(record_for(spec))];
     let mut depth = 0;
     loop {
         if depth >= 2.min(spec.faces()) && (level.len() >= TARGET_UNITS || depth >= spec.faces()) {
