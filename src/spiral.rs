@@ -894,10 +894,12 @@ impl Reader {
     }
 
     /// Marks `x` visited; returns how many of its neighbours were already visited.
-    fn visit(&mut self, dual: &Dual, x: u32) -> usize {
+    fn visit<const ORDER: bool>(&mut self, dual: &Dual, x: u32) -> usize {
         let state = &mut self.state;
         state[x as usize] |= VISITED;
-        self.order.push(x);
+        if ORDER {
+            self.order.push(x);
+        }
         let mut seen = 0;
         for &y in dual.neighbours(x) {
             // Every neighbour of y is counted in its remainder until visited, so this never
@@ -916,6 +918,21 @@ impl Reader {
     /// a reference the spiral is read to the end (`Equal` means it completed; the face order is
     /// in `self.order`).
     pub(crate) fn read(&mut self, dual: &Dual, start: Start, reference: Option<&[u8]>) -> Outcome {
+        self.read_with::<true>(dual, start, reference)
+    }
+
+    /// As [`Reader::read`] against `reference`, without recording the face order: the
+    /// canonicity test needs only the outcome.
+    fn compare(&mut self, dual: &Dual, start: Start, reference: &[u8]) -> Outcome {
+        self.read_with::<false>(dual, start, Some(reference))
+    }
+
+    fn read_with<const ORDER: bool>(
+        &mut self,
+        dual: &Dual,
+        start: Start,
+        reference: Option<&[u8]>,
+    ) -> Outcome {
         let f = dual.faces();
         self.reset(dual);
         let mut state = Ordering::Equal;
@@ -930,7 +947,7 @@ impl Reader {
                     return Outcome::Larger;
                 }
             }
-            self.visit(dual, x);
+            self.visit::<ORDER>(dual, x);
             self.boundary.push(x);
         }
         let mut head = 0usize;
@@ -958,7 +975,7 @@ impl Reader {
                 }
             }
             let open = self.boundary.len() - head;
-            let seen = self.visit(dual, next);
+            let seen = self.visit::<ORDER>(dual, next);
             if k + 1 == f {
                 if open != seen || seen != dual.size[next as usize] as usize {
                     return Outcome::Jam;
@@ -1030,7 +1047,7 @@ pub(crate) fn test_canonical(dual: &Dual, sizes: &[u8], reader: &mut Reader) -> 
     // C80's time).
     if let Some(start) = reader.rejector {
         if (start.first.0 as usize) < dual.faces()
-            && reader.read(dual, start, Some(sizes)) == Outcome::Smaller
+            && reader.compare(dual, start, sizes) == Outcome::Smaller
         {
             return Canonicity::NotCanonical;
         }
@@ -1179,14 +1196,14 @@ fn test_starts(
         }
     }
     for &start in smaller.iter() {
-        if reader.read(dual, start, Some(sizes)) == Outcome::Smaller {
+        if reader.compare(dual, start, sizes) == Outcome::Smaller {
             reader.rejector = Some(start);
             return Canonicity::NotCanonical;
         }
     }
     let mut automorphisms = 0;
     for &start in equal.iter() {
-        match reader.read(dual, start, Some(sizes)) {
+        match reader.compare(dual, start, sizes) {
             Outcome::Smaller => {
                 reader.rejector = Some(start);
                 return Canonicity::NotCanonical;
