@@ -577,6 +577,9 @@ impl Winder {
         } else {
             size - valency - *back
         };
+        // The index is below the face's size, so the mask (a power of two, checked below) changes
+        // nothing but drops the bounds check from the hottest join path.
+        const _: () = assert!(MAX_FACE.is_power_of_two());
         row[index as usize & (MAX_FACE - 1)] = y;
     }
 
@@ -1550,6 +1553,21 @@ mod tests {
     /// completing pentagon-start spiral of every C50 isomer, a reader carrying that start from
     /// one sequence to the next must give the verdict of a fresh reader, and a sequence is
     /// canonical exactly when it is its cage's canonical spiral.
+    /// Every start on a pentagon of `spiral`'s cage whose spiral completes, with that spiral's
+    /// face sizes.
+    fn completing_pentagon_starts(spiral: &Spiral) -> Vec<(Start, Vec<u8>)> {
+        let dual = Dual::from_cage(&spiral.to_cage());
+        let mut reader = Reader::default();
+        let mut found = Vec::new();
+        for start in dual.starts_of_size(5) {
+            if reader.read(&dual, start, None) == Outcome::Equal {
+                let sizes = reader.order.iter().map(|&x| dual.size[x as usize]);
+                found.push((start, sizes.collect()));
+            }
+        }
+        found
+    }
+
     #[test]
     fn the_remembered_rejecting_start_never_changes_a_verdict() {
         let verdict = |c: Canonicity| match c {
@@ -1559,17 +1577,7 @@ mod tests {
         let mut carried = Reader::default();
         let (mut sequences, mut canonical) = (0, 0);
         for spiral in crate::enumerate::fullerene_spirals(50) {
-            let dual = Dual::from_cage(&spiral.to_cage());
-            let mut reader = Reader::default();
-            for start in dual.starts_of_size(5).collect::<Vec<_>>() {
-                if reader.read(&dual, start, None) != Outcome::Equal {
-                    continue;
-                }
-                let sizes: Vec<u8> = reader
-                    .order
-                    .iter()
-                    .map(|&x| dual.size[x as usize])
-                    .collect();
+            for (start, sizes) in completing_pentagon_starts(&spiral) {
                 let wound = Dual::from_triangles(&sizes, &wind_triangles(&sizes, false).unwrap());
                 let fresh = verdict(test_canonical(&wound, &sizes, &mut Reader::default()));
                 let with_carried = verdict(test_canonical(&wound, &sizes, &mut carried));
@@ -1595,19 +1603,11 @@ mod tests {
     fn kept_rotations_equal_the_rotations_rebuilt_from_triangles() {
         let mut sequences: Vec<Vec<u8>> = Vec::new();
         for spiral in crate::enumerate::fullerene_spirals(50) {
-            let dual = Dual::from_cage(&spiral.to_cage());
-            let mut reader = Reader::default();
-            for start in dual.starts_of_size(5).collect::<Vec<_>>() {
-                if reader.read(&dual, start, None) == Outcome::Equal {
-                    sequences.push(
-                        reader
-                            .order
-                            .iter()
-                            .map(|&x| dual.size[x as usize])
-                            .collect(),
-                    );
-                }
-            }
+            sequences.extend(
+                completing_pentagon_starts(&spiral)
+                    .into_iter()
+                    .map(|(_, s)| s),
+            );
         }
         for atoms in (24..=40).step_by(2) {
             let spec = crate::enumerate::Spec {
