@@ -385,6 +385,11 @@ impl Winder {
             .map(|&f| self.sizes[f as usize])
     }
 
+    /// Number of open boundary faces.
+    pub(crate) fn open_faces(&self) -> usize {
+        self.boundary.len() - self.head
+    }
+
     /// Sum of the free valencies of the open boundary faces (the length of the patch's
     /// boundary circuit in the primal graph).
     pub(crate) fn open_valency(&self) -> u32 {

@@ -223,6 +223,16 @@ fn looked_up(r: usize, depth: usize) -> bool {
     r == depth || r % 3 == 2
 }
 
+/// IPR runs look boundaries up only with at most this many open faces. Hit rates by faces to
+/// go and open faces, IPR C110 on one thread, every lookup counted: with 8 to go, 97-99 % for
+/// 5-7 open faces, 63 % for 11, 38 % for 13, 20 % for 15 and 0-11 % for 16-18 (2.3 million
+/// lookups); with 11 to go, 56 % for 9 and 14 % for 13. Interleaved on two threads against
+/// the level-wide rule: IPR C120 42.5 / 40.7 s against 59.1 / 49.8 s, IPR C110 12.0 / 12.6 /
+/// 11.5 s against 14.4 / 16.7 / 13.7 s; 11 to 15 open faces were alike within the noise. The
+/// same cut at 14 open faces made all C100 slower (110 s against 80 s), so complete lists keep
+/// the level-wide rule (docs/performance.md).
+const IPR_MOST_OPEN: usize = 13;
+
 thread_local! {
     /// Per-thread search scratch and memo statistics.
     static MEMO: RefCell<Memo> = RefCell::new(Memo::default());
@@ -248,8 +258,8 @@ struct Memo {
     /// Lookups and hits per number of faces to go.
     lookups: [u64; MEMO_DEPTH + 1],
     hits: [u64; MEMO_DEPTH + 1],
-    /// Levels below the deepest given up for the same reason (for IPR C120, 10 % of lookups
-    /// with 14 faces to go hit and 17 % with 11).
+    /// Levels below the deepest given up for the same reason; complete lists only, as IPR runs
+    /// choose their lookups by the number of open faces (see [`IPR_MOST_OPEN`]).
     skip: [bool; MEMO_DEPTH + 1],
 }
 
@@ -456,7 +466,7 @@ impl<'a> Search<'a> {
             | u32::from(self.spec.ipr) << 5
             | first << 1
             | u32::from(self.spec.all_starts);
-        let key = if r <= memo.depth && looked_up(r, memo.depth) && !memo.skip[r] {
+        let key = if r <= memo.depth && looked_up(r, memo.depth) && self.worth_looking_up(r, memo) {
             self.winder.boundary_key(header, self.spec.ipr)
         } else {
             None
@@ -482,6 +492,20 @@ impl<'a> Search<'a> {
         }
         if let Some(k) = key {
             memo.remember(k, mark);
+        }
+    }
+
+    /// Whether the boundary at `r` faces to go is worth a lookup (each is a cache miss, and a
+    /// miss also stores the completions found). Complete lists give up levels that rarely hit
+    /// (see [`Memo::count`]). IPR runs decide by the number of open faces instead: their hit
+    /// rate falls with it at every level, from over 90 % with 5-7 open faces to 20-40 % with
+    /// 13 and almost none beyond 15, while a level's overall rate gave up the short boundaries
+    /// of a whole level with the long ones (see [`IPR_MOST_OPEN`]).
+    fn worth_looking_up(&self, r: usize, memo: &Memo) -> bool {
+        if self.spec.ipr {
+            self.winder.open_faces() <= IPR_MOST_OPEN
+        } else {
+            !memo.skip[r]
         }
     }
 
