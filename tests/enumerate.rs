@@ -109,7 +109,7 @@ fn c100_all_starts_count_matches_oeis() {
 }
 
 #[test]
-#[ignore = "heavy: IPR C120, 45-70 s on 2 cores depending on the machine (measured 2026-12-02); run with cargo test --release -- --ignored"]
+#[ignore = "heavy: IPR C120, 26-36 s on 2 cores depending on the machine (measured 2026-12-02); run with cargo test --release -- --ignored"]
 fn ipr_c120_count_matches_oeis() {
     // OEIS A046880: 10774 IPR fullerenes with 120 atoms.
     assert_eq!(count(120, true), 10_774);
