@@ -498,7 +498,7 @@ impl<'a> Search<'a> {
     /// Whether the boundary at `r` faces to go is worth a lookup (each is a cache miss, and a
     /// miss also stores the completions found). Complete lists give up levels that rarely hit
     /// (see [`Memo::count`]). IPR runs decide by the number of open faces instead: their hit
-    /// rate falls with it at every level, from over 90 % with 5-7 open faces to 20-40 % with
+    /// rate falls with it at every level, from over 80 % with 5-7 open faces to 14-42 % with
     /// 13 and almost none beyond 15, while a level's overall rate gave up the short boundaries
     /// of a whole level with the long ones (see [`IPR_MOST_OPEN`]).
     fn worth_looking_up(&self, r: usize, memo: &Memo) -> bool {
