@@ -1554,10 +1554,6 @@ mod tests {
         assert!(cages_with_a_jamming_smaller_ring > 0);
     }
 
-    /// The canonicity test first tries the start that rejected the previous sequence. Over every
-    /// completing pentagon-start spiral of every C50 isomer, a reader carrying that start from
-    /// one sequence to the next must give the verdict of a fresh reader, and a sequence is
-    /// canonical exactly when it is its cage's canonical spiral.
     /// Every start on a pentagon of `spiral`'s cage whose spiral completes, with that spiral's
     /// face sizes.
     fn completing_pentagon_starts(spiral: &Spiral) -> Vec<(Start, Vec<u8>)> {
@@ -1573,6 +1569,10 @@ mod tests {
         found
     }
 
+    /// The canonicity test first tries the start that rejected the previous sequence. Over every
+    /// completing pentagon-start spiral of every C50 isomer, a reader carrying that start from
+    /// one sequence to the next must give the verdict of a fresh reader, and a sequence is
+    /// canonical exactly when it is its cage's canonical spiral.
     #[test]
     fn the_remembered_rejecting_start_never_changes_a_verdict() {
         let verdict = |c: Canonicity| match c {
