@@ -212,8 +212,39 @@ impl Budget {
 }
 
 /// Completions are remembered for prefixes with at most this many faces to go (codes hold two
-/// bits a face in a `u32`).
+/// bits a face in a `u32` for face sets of three sizes).
 const MEMO_DEPTH: usize = 16;
+
+/// The first store level of complete lists of two face sizes (fullerenes), whose codes hold one
+/// bit a face. Above 16 faces to go the search tree of a complete list grows faster than its
+/// boundaries vary: all C90 on one thread wound 54 million faces with more than 16 to go and
+/// looked up 18.5 million boundaries at 16, 97 % of them stored already. Entering the store at
+/// 22 faces to go cut the faces wound by the search from 130 to 64 million (the replayed ones
+/// stay at about 105 million); interleaved on two threads, all C100 took 41-45 s at 22 or 25
+/// against 61-73 s at 16, all C90 13.7-14.8 s against 16.2-17.4 s, all C60 unchanged
+/// (docs/performance.md). IPR runs keep [`MEMO_DEPTH`]: deeper levels showed no effect there.
+const COMPLETE_MEMO_DEPTH: usize = 22;
+
+/// The deepest first store level any run uses (sizes the per-level statistics).
+const MAX_MEMO_DEPTH: usize = COMPLETE_MEMO_DEPTH;
+
+/// Bits a face takes in a completion code: one where the face set has two sizes.
+fn code_bits(set: FaceSet) -> u32 {
+    if set.sizes().len() <= 2 {
+        1
+    } else {
+        2
+    }
+}
+
+/// The first store level for `spec` (see [`COMPLETE_MEMO_DEPTH`]).
+fn memo_depth(spec: &Spec) -> usize {
+    if code_bits(spec.face_set) == 1 && !spec.ipr {
+        COMPLETE_MEMO_DEPTH
+    } else {
+        MEMO_DEPTH
+    }
+}
 
 /// Below the first level, boundaries are looked up only every third level (with two faces to
 /// go, five, eight, ...). Each lookup in the store is a cache miss, and a hit replays the
@@ -256,11 +287,11 @@ struct Memo {
     /// when lookups at the deepest level rarely hit (IPR boundaries seldom repeat).
     depth: usize,
     /// Lookups and hits per number of faces to go.
-    lookups: [u64; MEMO_DEPTH + 1],
-    hits: [u64; MEMO_DEPTH + 1],
+    lookups: [u64; MAX_MEMO_DEPTH + 1],
+    hits: [u64; MAX_MEMO_DEPTH + 1],
     /// Levels below the deepest given up for the same reason; complete lists only, as IPR runs
     /// choose their lookups by the number of open faces (see [`IPR_MOST_OPEN`]).
-    skip: [bool; MEMO_DEPTH + 1],
+    skip: [bool; MAX_MEMO_DEPTH + 1],
 }
 
 impl Memo {
@@ -268,10 +299,10 @@ impl Memo {
     fn prepare(&mut self, spec: &Spec) {
         if self.spec != Some(*spec) {
             self.spec = Some(*spec);
-            self.depth = MEMO_DEPTH;
-            self.lookups = [0; MEMO_DEPTH + 1];
-            self.hits = [0; MEMO_DEPTH + 1];
-            self.skip = [false; MEMO_DEPTH + 1];
+            self.depth = memo_depth(spec);
+            self.lookups = [0; MAX_MEMO_DEPTH + 1];
+            self.hits = [0; MAX_MEMO_DEPTH + 1];
+            self.skip = [false; MAX_MEMO_DEPTH + 1];
         }
         self.stack.clear();
     }
@@ -435,7 +466,7 @@ impl<'a> Search<'a> {
     }
 
     /// Runs every completion of the current prefix through [`Search::leaf`] and appends to
-    /// `memo.stack` a code for each (the remaining faces, two bits each, first face lowest), in
+    /// `memo.stack` a code for each (the remaining faces, one bit each for two face sizes and two for three, first face lowest), in
     /// search order.
     ///
     /// Which completions exist depends only on the open boundary (its free valencies, and for
@@ -480,12 +511,13 @@ impl<'a> Search<'a> {
             }
         }
         let mark = memo.stack.len();
+        let bits = code_bits(self.spec.face_set);
         for (i, &s) in self.spec.face_set.sizes().iter().enumerate() {
             if self.allowed(s) && self.try_push(s, used) {
                 let child = memo.stack.len();
                 self.solve(used + 6 - s as u32, out, memo);
                 for code in &mut memo.stack[child..] {
-                    *code = *code << 2 | i as u32;
+                    *code = *code << bits | i as u32;
                 }
                 self.winder.pop();
             }
@@ -514,6 +546,8 @@ impl<'a> Search<'a> {
     /// wound.
     fn replay(&mut self, r: usize, out: &mut Vec<Found>, memo: &mut Memo) {
         let sizes = self.spec.face_set.sizes();
+        let bits = code_bits(self.spec.face_set);
+        let mask = (1u32 << bits) - 1;
         let codes = std::mem::take(&mut memo.replay);
         let mut wound = 0;
         let mut previous = 0u32;
@@ -521,13 +555,13 @@ impl<'a> Search<'a> {
             let keep = if wound == 0 {
                 0
             } else {
-                (((previous ^ code).trailing_zeros() / 2) as usize).min(r)
+                (((previous ^ code).trailing_zeros() / bits) as usize).min(r)
             };
             for _ in keep..wound {
                 self.winder.pop();
             }
             for i in keep..r {
-                let s = sizes[(code >> (2 * i) & 3) as usize];
+                let s = sizes[(code >> (bits as usize * i) & mask) as usize];
                 self.winder.push_known(s);
             }
             wound = r;
@@ -608,7 +642,7 @@ pub fn run_unit(spec: &Spec, unit: &Unit) -> Vec<Found> {
         used += 6 - s as u32;
     }
     // Only cut where the pieces stay above the completion store's levels and the leaves.
-    if spec.faces() <= unit.prefix.len() + MEMO_DEPTH + PIECE_LEVELS {
+    if spec.faces() <= unit.prefix.len() + memo_depth(spec) + PIECE_LEVELS {
         return run_piece(spec, &search.winder);
     }
     let mut pieces = vec![search.winder.clone()];
