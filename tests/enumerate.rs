@@ -67,7 +67,7 @@ fn ipr_counts_match_oeis_a046880() {
 }
 
 #[test]
-#[ignore = "heavy: about 90 s on 2 cores (measured 2026-12-02); run with cargo test --release -- --ignored"]
+#[ignore = "heavy: about 45-50 s on 2 cores (measured 2026-12-02 night); run with cargo test --release -- --ignored"]
 fn c100_pentagon_starts_miss_exactly_one_cage() {
     // OEIS A007894: 285914 fullerenes with 100 atoms. Spirals starting on a pentagon find all
     // but one (measured 2026-12-02): the Td cage of tests/data/c100_no_pentagon_start.xyz has
