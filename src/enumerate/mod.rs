@@ -466,8 +466,8 @@ impl<'a> Search<'a> {
     }
 
     /// Runs every completion of the current prefix through [`Search::leaf`] and appends to
-    /// `memo.stack` a code for each (the remaining faces, one bit each for two face sizes and two for three, first face lowest), in
-    /// search order.
+    /// `memo.stack` a code for each (the remaining faces, first face lowest, [`code_bits`]
+    /// each), in search order.
     ///
     /// Which completions exist depends only on the open boundary (its free valencies, and for
     /// IPR which faces are pentagons), the faces left and the curvature left, not on how the
