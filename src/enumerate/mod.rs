@@ -220,7 +220,7 @@ const MEMO_DEPTH: usize = 16;
 /// boundaries vary: all C90 on one thread wound 54 million faces with more than 16 to go and
 /// looked up 18.5 million boundaries at 16, 97 % of them stored already. Entering the store at
 /// 22 faces to go cut the faces wound by the search from 130 to 64 million (the replayed ones
-/// stay at about 105 million); interleaved on two threads, all C100 took 41-45 s at 22 or 25
+/// stay at about 105 million); interleaved on two threads, all C100 took 40-51 s at 22 or 25
 /// against 61-73 s at 16, all C90 13.7-14.8 s against 16.2-17.4 s, all C60 unchanged
 /// (docs/performance.md). IPR runs keep [`MEMO_DEPTH`]: deeper levels showed no effect there.
 const COMPLETE_MEMO_DEPTH: usize = 22;
