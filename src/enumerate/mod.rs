@@ -211,8 +211,9 @@ impl Budget {
     }
 }
 
-/// Completions are remembered for prefixes with at most this many faces to go (codes hold two
-/// bits a face in a `u32` for face sets of three sizes).
+/// Completions are remembered for prefixes with at most this many faces to go: the first store
+/// level of IPR runs and of face sets of three sizes (whose codes hold two bits a face in a
+/// `u32`).
 const MEMO_DEPTH: usize = 16;
 
 /// The first store level of complete lists of two face sizes (fullerenes), whose codes hold one
@@ -227,6 +228,10 @@ const COMPLETE_MEMO_DEPTH: usize = 22;
 
 /// The deepest first store level any run uses (sizes the per-level statistics).
 const MAX_MEMO_DEPTH: usize = COMPLETE_MEMO_DEPTH;
+
+// A code of either width must hold every face below the first store level.
+const _: () = assert!(2 * MEMO_DEPTH <= 32 && COMPLETE_MEMO_DEPTH <= 32);
+const _: () = assert!(MEMO_DEPTH <= MAX_MEMO_DEPTH);
 
 /// Bits a face takes in a completion code: one where the face set has two sizes.
 fn code_bits(set: FaceSet) -> u32 {
@@ -529,10 +534,8 @@ impl<'a> Search<'a> {
 
     /// Whether the boundary at `r` faces to go is worth a lookup (each is a cache miss, and a
     /// miss also stores the completions found). Complete lists give up levels that rarely hit
-    /// (see [`Memo::count`]). IPR runs decide by the number of open faces instead: their hit
-    /// rate falls with it at every level, from over 80 % with 5-7 open faces to 14-42 % with
-    /// 13 and almost none beyond 15, while a level's overall rate gave up the short boundaries
-    /// of a whole level with the long ones (see [`IPR_MOST_OPEN`]).
+    /// (see [`Memo::count`]). IPR runs decide by the number of open faces instead, as their hit
+    /// rate falls with it at every level (figures at [`IPR_MOST_OPEN`]).
     fn worth_looking_up(&self, r: usize, memo: &Memo) -> bool {
         if self.spec.ipr {
             self.winder.open_faces() <= IPR_MOST_OPEN
