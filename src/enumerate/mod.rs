@@ -488,7 +488,12 @@ impl<'a> Search<'a> {
             return;
         }
         let left = 12 - used;
-        let first = self.winder.sizes().first().map_or(0, |&f| f as u32);
+        // With every start allowed, no face depends on the first one, so prefixes that start
+        // on different sizes share their completions.
+        let first = match self.winder.sizes().first() {
+            Some(&f) if !self.spec.all_starts => f as u32,
+            _ => 0,
+        };
         // Everything besides the boundary that decides the completions. The atom count is not
         // needed: winding depends on it only through the faces to go, so sizes share entries.
         let set = match self.spec.face_set {
