@@ -77,7 +77,7 @@ fn c100_pentagon_starts_miss_exactly_one_cage() {
 }
 
 #[test]
-#[ignore = "heavy: about 5-6 minutes on 2 cores (the three ignored tests took 394 s together, measured 2026-12-02 night); run with cargo test --release -- --ignored"]
+#[ignore = "heavy: about 4-6 minutes on 2 cores (the three ignored tests took 324 s together on 2026-12-03, 394 s the night before); run with cargo test --release -- --ignored"]
 fn c100_all_starts_count_matches_oeis() {
     // OEIS A007894: 285914 fullerenes with 100 atoms. With hexagon starts as well, the one cage
     // the default misses comes last: the Td cage whose spirals all start on hexagons (see
