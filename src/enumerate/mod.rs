@@ -388,14 +388,12 @@ impl<'a> Search<'a> {
     }
 
     /// May a face of size `s` come next? The first face must be the smallest size of the set
-    /// (unless `all_starts`), and no later face may be smaller than the first.
+    /// (unless `all_starts`); any later face may follow. Only the first face is restricted, so
+    /// the completions of a prefix never depend on it (see [`Search::solve`]'s key).
     fn allowed(&self, s: u8) -> bool {
-        let sizes = self.spec.face_set.sizes();
-        match self.winder.sizes().first() {
-            _ if self.spec.all_starts => true,
-            None => s == sizes[0],
-            Some(&f) => s >= f,
-        }
+        self.spec.all_starts
+            || !self.winder.sizes().is_empty()
+            || s == self.spec.face_set.sizes()[0]
     }
 
     fn used_budget(&self) -> u32 {
@@ -488,25 +486,16 @@ impl<'a> Search<'a> {
             return;
         }
         let left = 12 - used;
-        // With every start allowed, no face depends on the first one, so prefixes that start
-        // on different sizes share their completions.
-        let first = match self.winder.sizes().first() {
-            Some(&f) if !self.spec.all_starts => f as u32,
-            _ => 0,
-        };
         // Everything besides the boundary that decides the completions. The atom count is not
         // needed: winding depends on it only through the faces to go, so sizes share entries.
+        // Nor are the first face and `all_starts`, which restrict only the first face
+        // ([`Search::allowed`]): prefixes that start on a pentagon or a hexagon share entries.
         let set = match self.spec.face_set {
             FaceSet::Fullerene => 0,
             FaceSet::SquareHexagon => 1,
             FaceSet::SquarePentagonHexagon => 2,
         };
-        let header = (r as u32) << 12
-            | left << 8
-            | set << 6
-            | u32::from(self.spec.ipr) << 5
-            | first << 1
-            | u32::from(self.spec.all_starts);
+        let header = (r as u32) << 12 | left << 8 | set << 6 | u32::from(self.spec.ipr) << 5;
         let key = if r <= memo.depth && looked_up(r, memo.depth) && self.worth_looking_up(r, memo) {
             self.winder.boundary_key(header, self.spec.ipr)
         } else {
