@@ -11,10 +11,15 @@ use petgraph::graph::UnGraph;
 use proptest::prelude::*;
 
 fn all(atoms: u64, ipr: bool, threads: usize, shard: Option<Shard>) -> Vec<Isomer> {
-    let spec = Spec::fullerene(atoms, ipr).unwrap();
+    listed(
+        &Spec::fullerene(atoms, ipr).unwrap(),
+        Options { threads, shard },
+    )
+}
+
+fn listed(spec: &Spec, opts: Options) -> Vec<Isomer> {
     let mut out = Vec::new();
-    let opts = Options { threads, shard };
-    enumerate::enumerate(&spec, &opts, |_, _| {}, |i| out.push(i)).unwrap();
+    enumerate::enumerate(spec, &opts, |_, _| {}, |i| out.push(i)).unwrap();
     out
 }
 
@@ -209,15 +214,10 @@ fn all_starts_search_finds_the_same_isomers_up_to_50_and_ipr_60_and_70_to_84() {
             ..Spec::fullerene(n, ipr).unwrap()
         };
         // Everything but the unit, whose numbering depends on the search tree.
-        let mut out = Vec::new();
-        enumerate::enumerate(
-            &spec,
-            &Options::default(),
-            |_, _| {},
-            |i| out.push((i.spiral, i.automorphisms, i.ipr, i.number, i.ipr_number)),
-        )
-        .unwrap();
-        out
+        listed(&spec, Options::default())
+            .into_iter()
+            .map(|i| (i.spiral, i.automorphisms, i.ipr, i.number, i.ipr_number))
+            .collect::<Vec<_>>()
     };
     let sizes = (20..=50)
         .step_by(2)
