@@ -268,7 +268,15 @@ fn a_run_with_hexagon_starts_does_not_mix_with_one_without() {
         Err(e) => e.to_string(),
     };
     assert!(msg.contains("already holds a different run"), "{msg}");
+    // The existing C100 run started only on pentagons, which may miss a cage there.
+    assert!(
+        msg.contains("pentagon starts only: may miss cages"),
+        "{msg}"
+    );
+    assert!(msg.contains("run again with --pentagon-starts"), "{msg}");
     assert!(other.label().contains("all starts"));
+    // Where pentagon starts are checked to find every cage, the label adds nothing.
+    assert_eq!(run_info(98, false, 4, None).label(), "C98 (all, fullerene)");
     let _ = fs::remove_dir_all(&dir);
 }
 

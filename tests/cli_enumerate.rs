@@ -58,6 +58,7 @@ fn bad_input_gives_one_line_and_exit_2() {
         vec!["enumerate", "18"],
         vec!["enumerate", "sixty"],
         vec!["enumerate", "60", "--shard", "0/3"],
+        vec!["enumerate", "60", "--all-starts", "--pentagon-starts"],
         vec!["spiral", "1,2,3"],
         vec!["spiral", "1,2,3,4,5,6,7,8,9,10,11,12", "--atoms", "60"],
         vec!["spiral", "1,7,x"],
@@ -68,4 +69,28 @@ fn bad_input_gives_one_line_and_exit_2() {
         assert!(!err.contains("panicked"), "{args:?}: {err}");
         assert!(!err.trim().is_empty());
     }
+}
+
+#[test]
+fn beyond_the_checked_sizes_hexagon_starts_are_searched_and_skipping_them_warns() {
+    // One shard of thousands keeps this quick; the notes are printed before the search.
+    let c100 = ["enumerate", "100", "--count-only", "--shard", "3000/3000"];
+    let (code, _, err) = run(&c100);
+    assert_eq!(code, 0, "{err}");
+    assert!(
+        err.contains("note: C100 is searched from hexagon starts too"),
+        "{err}"
+    );
+    let (code, _, err) = run(&[&c100[..], &["--pentagon-starts"]].concat());
+    assert_eq!(code, 0, "{err}");
+    assert!(
+        err.contains("warning: spirals starting on a pentagon"),
+        "{err}"
+    );
+    assert!(!err.contains("note:"), "{err}");
+    let (_, _, err) = run(&[&c100[..], &["--quiet"]].concat());
+    assert!(!err.contains("note:"), "{err}");
+    // Within the checked range nothing is said (pentagon starts find every cage).
+    let (_, _, err) = run(&["enumerate", "98", "--count-only", "--shard", "3000/3000"]);
+    assert!(err.trim().is_empty(), "{err}");
 }

@@ -102,10 +102,23 @@ impl RunInfo {
         data_file_name(self.face_set, self.atoms, self.ipr)
     }
 
-    /// Human name, e.g. "C100 (IPR, fullerene)".
+    /// Human name, e.g. "C100 (IPR, fullerene)". A run that started spirals only on pentagons
+    /// where that is not known to find every cage says so, as its list may be short.
     pub fn label(&self) -> String {
         let list = if self.ipr { "IPR" } else { "all" };
-        let starts = if self.all_starts { ", all starts" } else { "" };
+        let spec = crate::enumerate::Spec {
+            atoms: self.atoms,
+            face_set: self.face_set,
+            ipr: self.ipr,
+            all_starts: self.all_starts,
+        };
+        let starts = if self.all_starts {
+            ", all starts"
+        } else if !spec.starts_verified() {
+            ", pentagon starts only: may miss cages"
+        } else {
+            ""
+        };
         format!("C{} ({list}, {}{starts})", self.atoms, self.face_set)
     }
 }

@@ -179,10 +179,20 @@ fn existing_run_matches(dest: &Path, info: &RunInfo) -> Result<bool, CatalogueEr
     }
     let existing = DataFile::open(dest)?;
     if existing.info != *info {
+        let hint = if existing.info.all_starts != info.all_starts {
+            let flag = if existing.info.all_starts {
+                "--all-starts"
+            } else {
+                "--pentagon-starts"
+            };
+            format!("; to resume it, run again with {flag}")
+        } else {
+            String::new()
+        };
         return Err(CatalogueError::RunMismatch {
             path: dest.to_path_buf(),
             detail: format!(
-                "already holds a different run ({}); delete it or use another catalogue directory",
+                "already holds a different run ({}); delete it or use another catalogue directory{hint}",
                 describe(&existing.info)
             ),
         });

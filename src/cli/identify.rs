@@ -256,9 +256,11 @@ fn number_notes(n: &Numbers, atoms: usize, spiral: &Spiral) -> Vec<String> {
     let mut notes = Vec::new();
     if spiral.sizes().first() != Some(&5) && n.complete.listed().is_none() {
         notes.push(format!(
-            "this cage has no spiral starting on a pentagon: lists built without --all-starts \
-             (the default) leave it out, and its number follows every pentagon-start C{atoms} \
-             cage; build the catalogue with --all-starts to number it"
+            "this cage has no spiral starting on a pentagon: lists built with --pentagon-starts \
+             (or by cagerank before hexagon starts became the default beyond C{}) leave it out, \
+             and its number follows every pentagon-start C{atoms} cage; rebuild the C{atoms} \
+             catalogue without --pentagon-starts to number it",
+            cagerank::enumerate::PENTAGON_STARTS_CHECKED
         ));
     }
     for (list, number) in [("complete-list", n.complete), ("IPR-list", n.ipr)] {

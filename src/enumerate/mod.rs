@@ -12,15 +12,15 @@
 //! machines and of resumable catalogue runs. This module does no I/O; scoring and storage are
 //! left to `score` and `catalogue`.
 //!
-//! Completeness: by default a sequence must start with the smallest face size of its cage (for a
-//! fullerene, a pentagon). That misses any cage none of whose smallest-face starts completes. The
-//! counts match OEIS A007894 for every n from 20 to 70 (tests) and for n = 80 (31,924, measured),
-//! and A046880 for IPR n = 60..90, 100 (tests) and 120 (10,774, measured); but all C100 gives
-//! 285,913 of the published 285,914 (measured): one C100 cage has no completing pentagon start
-//! and is found only with [`Spec::all_starts`], which also tries hexagon starts (far slower).
-//! [`Spec::starts_verified`] says where the default is known complete. Face spirals themselves
-//! are complete only below 380 atoms (Wirz et al., J. Chem. Inf. Model. 54 (2014) 121);
-//! [`Spec::spiral_complete`] says so.
+//! Completeness: a sequence that starts with the smallest face size of its cage (for a
+//! fullerene, a pentagon) is tried first, and for most sizes that is enough; but it misses any
+//! cage none of whose smallest-face starts completes. All C100 has one such cage (a Td cage;
+//! pentagon starts give 285,913 of OEIS A007894's 285,914), which only a search that also tries
+//! hexagon starts ([`Spec::all_starts`], several times slower) finds. [`Spec::fullerene`]
+//! therefore turns hexagon starts on wherever pentagon starts alone have not been checked
+//! complete: complete lists above [`PENTAGON_STARTS_CHECKED`] atoms and IPR lists above
+//! [`PENTAGON_STARTS_CHECKED_IPR`]. Face spirals themselves are complete only below 380 atoms
+//! (Wirz et al., J. Chem. Inf. Model. 54 (2014) 121); [`Spec::spiral_complete`] says so.
 
 mod store;
 
@@ -39,10 +39,16 @@ use std::str::FromStr;
 /// Wirz, Tonner, Avery, Schwerdtfeger, J. Chem. Inf. Model. 54 (2014) 121).
 pub const FIRST_SPIRALLESS_ATOMS: u32 = 380;
 
-/// Largest sizes whose pentagon-start counts were checked against OEIS A007894 (complete) and
-/// A046880 (IPR).
-pub const LARGEST_CHECKED_COMPLETE: u32 = 80;
-pub const LARGEST_CHECKED_IPR: u32 = 120;
+/// Every complete list up to this size is found whole by pentagon starts alone. Checked per
+/// size: counts equal to OEIS A007894 for n = 20..70 (tests), and equal to the count of the
+/// search with hexagon starts for every n = 72..98 (measured, docs/performance.md). All C100
+/// is not: one cage has no pentagon-start spiral.
+pub const PENTAGON_STARTS_CHECKED: u32 = 98;
+
+/// Every IPR list up to this size is found whole by pentagon starts alone: counts equal to
+/// OEIS A046880 for n = 60..90, 100 (tests) and 120 (measured), and to the count of the search
+/// with hexagon starts for every other n = 92..118 (measured, docs/performance.md).
+pub const PENTAGON_STARTS_CHECKED_IPR: u32 = 120;
 
 /// The search wants at least this many units so that rayon can balance the load and a resumed
 /// run loses little work.
@@ -54,21 +60,27 @@ pub struct Spec {
     pub atoms: u32,
     pub face_set: FaceSet,
     pub ipr: bool,
-    /// Also try sequences that start with a face larger than the cage's smallest (slow; a check
-    /// of the default's completeness).
+    /// Also try sequences that start with a face larger than the cage's smallest (several
+    /// times slower). [`Spec::fullerene`] sets it wherever smallest-face starts alone are not
+    /// checked complete; clearing it there gives a faster search that may miss cages, setting
+    /// it elsewhere re-checks the smallest-face search.
     pub all_starts: bool,
 }
 
 impl Spec {
-    /// Fullerenes (pentagons and hexagons) with `atoms` carbons.
+    /// Fullerenes (pentagons and hexagons) with `atoms` carbons, searched from every start
+    /// where pentagon starts alone are not known to find every cage, so that the default list
+    /// is complete (below 380 atoms, see [`Spec::spiral_complete`]).
     pub fn fullerene(atoms: u64, ipr: bool) -> Result<Spec, SpiralError> {
         check_fullerene_atoms(atoms)?;
-        Ok(Spec {
+        let mut spec = Spec {
             atoms: atoms as u32,
             face_set: FaceSet::Fullerene,
             ipr,
             all_starts: false,
-        })
+        };
+        spec.all_starts = !spec.smallest_starts_checked();
+        Ok(spec)
     }
 
     /// Number of faces of every cage of this size (Euler: n/2 + 2).
@@ -81,16 +93,21 @@ impl Spec {
         self.atoms < FIRST_SPIRALLESS_ATOMS
     }
 
-    /// True where the smallest-face-start search is known to find every cage: with
-    /// `all_starts`, or up to the largest size whose count has been checked against the
-    /// published tables (see the module notes). All C100 is known to miss one cage.
-    pub fn starts_verified(&self) -> bool {
+    /// True where starting only on the smallest face size is known to find every cage (see
+    /// [`PENTAGON_STARTS_CHECKED`]); never for face sets with squares, which were not checked.
+    pub fn smallest_starts_checked(&self) -> bool {
         let checked = match (self.face_set, self.ipr) {
-            (FaceSet::Fullerene, false) => LARGEST_CHECKED_COMPLETE,
-            (FaceSet::Fullerene, true) => LARGEST_CHECKED_IPR,
+            (FaceSet::Fullerene, false) => PENTAGON_STARTS_CHECKED,
+            (FaceSet::Fullerene, true) => PENTAGON_STARTS_CHECKED_IPR,
             _ => 0,
         };
-        self.all_starts || self.atoms <= checked
+        self.atoms <= checked
+    }
+
+    /// True where this search finds every cage that has a face spiral: with `all_starts`, or
+    /// where the smallest-face starts are checked complete.
+    pub fn starts_verified(&self) -> bool {
+        self.all_starts || self.smallest_starts_checked()
     }
 }
 

@@ -15,8 +15,8 @@ use crate::spiral::Spiral;
 use std::path::Path;
 
 /// Largest cage whose complete-list number is found by enumeration. C84 has 51592 (OEIS A007894)
-/// isomers; the enumerator's notes give about a minute for C100's 285914, which is too slow to
-/// run per structure by default (threshold: a judgement call, not measured per machine).
+/// isomers; C100's 285914 take minutes (hexagon starts included, docs/performance.md), too slow
+/// to run per structure by default (threshold: a judgement call, not measured per machine).
 pub const COMPLETE_LIST_MAX_ATOMS: usize = 84;
 
 /// Largest cage whose IPR-list number is found by enumeration (the IPR search prunes hard; C120
