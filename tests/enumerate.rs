@@ -86,7 +86,7 @@ fn c100_pentagon_starts_miss_exactly_one_cage() {
 }
 
 #[test]
-#[ignore = "heavy: about 4-6 minutes on 2 cores (the three ignored tests took 324 s together on 2026-12-03, 394 s the night before); run with cargo test --release -- --ignored"]
+#[ignore = "heavy: about 5 minutes on 2 cores (286 s on 2026-12-03); run with cargo test --release -- --ignored"]
 fn c100_default_search_finds_all_285914() {
     // OEIS A007894: 285914 fullerenes with 100 atoms. The default C100 search also tries hexagon
     // starts, and the one cage pentagon starts miss comes last: the Td cage whose spirals all
@@ -168,7 +168,7 @@ fn check_pentagon_starts_alone(sizes: &[(u64, u64)], ipr: bool) {
 }
 
 #[test]
-#[ignore = "heavy: about 19 minutes on 2 cores (measured 2026-12-03); run with cargo test --release -- --ignored"]
+#[ignore = "heavy: about 18 minutes on 2 cores (1,049 s on 2026-12-03); run with cargo test --release -- --ignored"]
 fn pentagon_starts_alone_find_every_cage_from_c72_to_c98() {
     // Why Spec::fullerene searches only pentagon starts up to C98 (sizes up to C70 are checked
     // against OEIS A007894 above). From memory: OEIS A007894 for n = 72, 74, ..., 98.
@@ -192,7 +192,7 @@ fn pentagon_starts_alone_find_every_cage_from_c72_to_c98() {
 }
 
 #[test]
-#[ignore = "heavy: about 9 minutes on 2 cores (measured 2026-12-03); run with cargo test --release -- --ignored"]
+#[ignore = "heavy: about 9 minutes on 2 cores (513 s on 2026-12-03); run with cargo test --release -- --ignored"]
 fn pentagon_starts_alone_find_every_ipr_cage_from_c92_to_c118() {
     // Why Spec::fullerene searches only pentagon starts up to IPR C120 (C60-C90, C100 and C120
     // are checked against OEIS A046880 in the tests above). From memory: OEIS A046880 for

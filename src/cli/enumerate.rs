@@ -32,7 +32,7 @@ pub struct Args {
     /// One JSON object per line instead of text.
     #[arg(long)]
     pub json: bool,
-    /// No progress bar.
+    /// No progress bar and no notes (warnings are still printed).
     #[arg(long)]
     pub quiet: bool,
     /// Also search spirals starting on a hexagon even where pentagon starts are checked to find
