@@ -647,6 +647,7 @@ const PIECE_LEVELS: usize = 3;
 
 /// Every isomer whose canonical spiral starts with the unit's prefix, in spiral order.
 pub fn run_unit(spec: &Spec, unit: &Unit) -> Vec<Found> {
+    store::widen(spec.all_starts);
     let mut search = Search::new(spec);
     let mut used = 0;
     for &s in &unit.prefix {

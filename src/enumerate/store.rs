@@ -6,10 +6,11 @@
 //! (16-byte key, 8-byte range) in one 24-byte slot with linear probing, so a lookup and the insert
 //! that follows a miss usually touch one cache line.
 
+use std::sync::atomic::{AtomicBool, Ordering};
 use std::sync::{Mutex, MutexGuard, OnceLock};
 
-/// Bounds on the store (peak process memory up to about 1.2 GB); a shard is emptied when it
-/// reaches its part of either. On 4 KB pages, all C100 on 2 threads took 151 s with 2^21
+/// Bounds on the store (peak process memory up to about 1.2 GB; with hexagon starts twice the
+/// caps, see [`WIDE`]); a shard is emptied when it reaches its part of either. On 4 KB pages, all C100 on 2 threads took 151 s with 2^21
 /// boundaries, 121 s with 2^22, 103 s with 2^23 and 115 s with 2^24 (0.17, 0.31, 0.61 and
 /// 0.91 GB peak): the larger table cost more in TLB and cache misses than its hits saved. On
 /// 2 MB pages (see [`advise_huge_pages`]) 2^24 is the faster: all C100 135.7 s against 149.1 s,
@@ -21,7 +22,26 @@ const SHARDS: usize = 64;
 /// Slots per shard: a table starts small and doubles when half full, up to twice the boundaries
 /// a shard may hold, so probe runs stay short and small runs touch little memory.
 const FIRST_SLOTS: usize = 1 << 10;
-const MAX_SLOTS: usize = 2 * MAX_BOUNDARIES / SHARDS;
+
+/// Runs with hexagon starts may use twice the caps above (peak about 2.1 GB). They fill the
+/// store at C100: the default all C100 (hexagon starts on) took 235 / 224 / 249 s with twice
+/// the caps against 318 / 290 / 326 s, in interleaved pairs (2.0-2.2 against 1.0-1.1 GB peak;
+/// four times the caps gave 207 s at 3.6 GB), while IPR C120 gained nothing from them and
+/// doubled its memory (35.7 / 27.7 s against 31.4 / 29.3 s; docs/performance.md).
+static WIDE: AtomicBool = AtomicBool::new(false);
+
+/// Chooses the caps for the runs that follow (see [`WIDE`]). Runs sharing a process may
+/// switch it under each other; that changes speed and memory, never results.
+pub(super) fn widen(wide: bool) {
+    WIDE.store(wide, Ordering::Relaxed);
+}
+
+/// The per-shard caps now in force: boundaries, completion codes, slots.
+fn caps() -> (usize, usize, usize) {
+    let scale = if WIDE.load(Ordering::Relaxed) { 2 } else { 1 };
+    let boundaries = scale * MAX_BOUNDARIES / SHARDS;
+    (boundaries, scale * MAX_CODES / SHARDS, 2 * boundaries)
+}
 
 /// One entry: the key's two halves and the range of its codes (`from | to << 32`). The all-zero
 /// key marks an empty slot (boundary keys are never zero: their header holds the number of faces
@@ -161,7 +181,7 @@ pub(super) fn recall(key: u128, out: &mut Vec<u32>) -> bool {
 /// thread may have stored the same key meanwhile, in which case its entry (the same
 /// completions) is kept.
 pub(super) fn remember(key: u128, codes: &[u32]) {
-    let max_codes = MAX_CODES / SHARDS;
+    let (max_boundaries, max_codes, max_slots) = caps();
     if codes.len() > max_codes {
         return;
     }
@@ -170,9 +190,9 @@ pub(super) fn remember(key: u128, codes: &[u32]) {
     if shard.slots.is_empty() {
         shard.slots = vec![[0; 3]; FIRST_SLOTS];
     }
-    if shard.used >= MAX_BOUNDARIES / SHARDS || shard.codes.len() + codes.len() > max_codes {
+    if shard.used >= max_boundaries || shard.codes.len() + codes.len() > max_codes {
         shard.clear();
-    } else if 2 * (shard.used + 1) > shard.slots.len() && shard.slots.len() < MAX_SLOTS {
+    } else if 2 * (shard.used + 1) > shard.slots.len() && shard.slots.len() < max_slots {
         shard.grow();
     }
     let i = shard.probe(parts, hash);
