@@ -66,7 +66,6 @@ pub fn run(args: Args) -> Result<(), CliError> {
 
 fn spec_for(args: &Args, atoms: u64) -> Result<Spec, CliError> {
     let mut spec = Spec::fullerene(atoms, args.ipr).map_err(|e| CliError::usage(e.to_string()))?;
-    let hexagons_by_default = spec.all_starts;
     spec.all_starts = (spec.all_starts || args.all_starts) && !args.pentagon_starts;
     if !spec.spiral_complete() {
         eprintln!(
@@ -79,7 +78,8 @@ fn spec_for(args: &Args, atoms: u64) -> Result<Spec, CliError> {
             enumerate::PENTAGON_STARTS_CHECKED,
             enumerate::PENTAGON_STARTS_CHECKED_IPR
         );
-    } else if hexagons_by_default && !args.all_starts && !args.quiet {
+    } else if !spec.smallest_starts_checked() && !args.all_starts && !args.quiet {
+        // Verified yet not checked for pentagon starts: the default turned hexagon starts on.
         eprintln!(
             "cagerank: note: C{atoms} is searched from hexagon starts too, as pentagon starts alone are checked complete only up to C{} (IPR C{}); this is several times slower, and --pentagon-starts skips it at the risk of missing cages",
             enumerate::PENTAGON_STARTS_CHECKED,
