@@ -12,6 +12,7 @@ pub mod draw;
 pub mod enumerate;
 pub mod export;
 pub mod geometry;
+pub mod id;
 pub mod identify;
 pub mod score;
 pub mod spiral;
