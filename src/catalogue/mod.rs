@@ -10,6 +10,7 @@
 
 pub mod chunk;
 pub mod crc;
+pub mod energies;
 pub mod format;
 pub mod lock;
 pub mod merge;
