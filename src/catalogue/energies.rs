@@ -167,7 +167,7 @@ impl Energies {
         let low = self.lowest_ev()?;
         record
             .rankable()
-            .then(|| (record.energy_ev - low) * KJ_PER_MOL_PER_EV)
+            .then_some((record.energy_ev - low) * KJ_PER_MOL_PER_EV)
     }
 
     /// The record of isomer `number`, if relaxed.
