@@ -21,6 +21,15 @@
 //! complete: complete lists above [`PENTAGON_STARTS_CHECKED`] atoms and IPR lists above
 //! [`PENTAGON_STARTS_CHECKED_IPR`]. Face spirals themselves are complete only below 380 atoms
 //! (Wirz et al., J. Chem. Inf. Model. 54 (2014) 121); [`Spec::spiral_complete`] says so.
+//!
+//! Why no prefix of a hexagon-start sequence is rejected early (our own argument, not a
+//! published result): the sequence is canonical only if every pentagon start of its cage jams,
+//! and jams show late (for all C60-C90, half of them in the last four faces), so a prefix cannot
+//! show that a start read inside it completes. Nor can another start borrow the prefix's own
+//! completion: the spiral state after k faces (visited faces, open faces in order) determines
+//! the state after k - 1 (remove the newest face, put back the faces it closed), so two starts
+//! that share a state are the same start. Each such sequence is therefore wound to its leaf and
+//! rejected there, which is why hexagon starts cost several times more (docs/performance.md).
 
 mod store;
 
