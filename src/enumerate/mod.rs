@@ -21,6 +21,15 @@
 //! complete: complete lists above [`PENTAGON_STARTS_CHECKED`] atoms and IPR lists above
 //! [`PENTAGON_STARTS_CHECKED_IPR`]. Face spirals themselves are complete only below 380 atoms
 //! (Wirz et al., J. Chem. Inf. Model. 54 (2014) 121); [`Spec::spiral_complete`] says so.
+//!
+//! Why no prefix of a hexagon-start sequence is rejected early (our own argument, not a
+//! published result): the sequence is canonical only if every pentagon start of its cage jams,
+//! and jams show late (for all C60-C90, half of them in the last four faces), so a prefix cannot
+//! show that a start read inside it completes. Nor can another start borrow the prefix's own
+//! completion: the spiral state after k faces (visited faces, open faces in order) determines
+//! the state after k - 1 (remove the newest face, put back the faces it closed), so two starts
+//! that share a state are the same start. Each such sequence is therefore wound to its leaf and
+//! rejected there, which is why hexagon starts cost several times more (docs/performance.md).
 
 mod store;
 
@@ -41,13 +50,14 @@ pub const FIRST_SPIRALLESS_ATOMS: u32 = 380;
 
 /// Every complete list up to this size is found whole by pentagon starts alone. Checked per
 /// size: counts equal to OEIS A007894 for n = 20..70 (tests), and equal to the count of the
-/// search with hexagon starts for every n = 72..98 (measured, docs/performance.md). All C100
-/// is not: one cage has no pentagon-start spiral.
+/// search with hexagon starts for every n = 72..98 (measured, docs/performance.md, completeness
+/// checks). All C100 is not: one cage has no pentagon-start spiral.
 pub const PENTAGON_STARTS_CHECKED: u32 = 98;
 
 /// Every IPR list up to this size is found whole by pentagon starts alone: counts equal to
 /// OEIS A046880 for n = 60..90, 100 (tests) and 120 (measured), and to the count of the search
-/// with hexagon starts for every other n = 92..118 (measured, docs/performance.md).
+/// with hexagon starts for every other n = 92..118 (measured, docs/performance.md, completeness
+/// checks).
 pub const PENTAGON_STARTS_CHECKED_IPR: u32 = 120;
 
 /// The search wants at least this many units so that rayon can balance the load and a resumed
@@ -240,7 +250,8 @@ const MEMO_DEPTH: usize = 16;
 /// 22 faces to go cut the faces wound by the search from 130 to 64 million (the replayed ones
 /// stay at about 105 million); interleaved on two threads, all C100 took 40-51 s at 22 or 25
 /// against 61-73 s at 16, all C90 13.7-14.8 s against 16.2-17.4 s, all C60 unchanged
-/// (docs/performance.md). IPR runs keep [`MEMO_DEPTH`]: deeper levels showed no effect there.
+/// (measured 2026-12-02; docs/performance.md as of commit 7fac3de). IPR runs keep
+/// [`MEMO_DEPTH`]: deeper levels showed no effect there.
 const COMPLETE_MEMO_DEPTH: usize = 22;
 
 /// The deepest first store level any run uses (sizes the per-level statistics).
@@ -271,7 +282,8 @@ fn memo_depth(spec: &Spec) -> usize {
 /// Below the first level, boundaries are looked up only every third level (with two faces to
 /// go, five, eight, ...). Each lookup in the store is a cache miss, and a hit replays the
 /// levels below it anyway; looking up every level took about 15 % more time and three times
-/// the memory for all C70 and IPR C100 (measured, docs/performance.md).
+/// the memory for all C70 and IPR C100 (measured 2026-12-02; docs/performance.md as of commit
+/// a023b6b).
 fn looked_up(r: usize, depth: usize) -> bool {
     r == depth || r % 3 == 2
 }
@@ -283,7 +295,7 @@ fn looked_up(r: usize, depth: usize) -> bool {
 /// the level-wide rule: IPR C120 42.5 / 40.7 s against 59.1 / 49.8 s, IPR C110 12.0 / 12.6 /
 /// 11.5 s against 14.4 / 16.7 / 13.7 s; 11 to 15 open faces were alike within the noise. The
 /// same cut at 14 open faces made all C100 slower (110 s against 80 s), so complete lists keep
-/// the level-wide rule (docs/performance.md).
+/// the level-wide rule (measured 2026-12-02; docs/performance.md as of commit f0d5fe2).
 const IPR_MOST_OPEN: usize = 13;
 
 thread_local! {

@@ -15,7 +15,7 @@ use std::sync::{Mutex, MutexGuard, OnceLock};
 /// 0.91 GB peak): the larger table cost more in TLB and cache misses than its hits saved. On
 /// 2 MB pages (see [`advise_huge_pages`]) 2^24 is the faster: all C100 135.7 s against 149.1 s,
 /// IPR C120 75.1 / 79.7 s against 85.4 / 82.4 s (interleaved, 0.99 and 0.82 GB peak;
-/// docs/performance.md).
+/// measured 2026-12-02; docs/performance.md as of commits a023b6b and 15043ff).
 const MAX_BOUNDARIES: usize = 1 << 24;
 const MAX_CODES: usize = 1 << 25;
 const SHARDS: usize = 64;
@@ -27,7 +27,8 @@ const FIRST_SLOTS: usize = 1 << 10;
 /// store at C100: the default all C100 (hexagon starts on) took 235 / 224 / 249 s with twice
 /// the caps against 318 / 290 / 326 s, in interleaved pairs (2.0-2.2 against 1.0-1.1 GB peak;
 /// four times the caps gave 207 s at 3.6 GB), while IPR C120 gained nothing from them and
-/// doubled its memory (35.7 / 27.7 s against 31.4 / 29.3 s; docs/performance.md).
+/// doubled its memory (35.7 / 27.7 s against 31.4 / 29.3 s; measured 2026-12-03,
+/// docs/performance.md as of commit 7b3f36d).
 static WIDE: AtomicBool = AtomicBool::new(false);
 
 /// Chooses the caps for the runs that follow (see [`WIDE`]). Runs sharing a process may
@@ -93,8 +94,8 @@ impl Shard {
 
 /// Asks Linux to back a large table with 2 MB pages. Lookups land on random slots of a few
 /// hundred megabytes, so with 4 KB pages nearly every one also misses the TLB; with huge pages
-/// IPR C120 ran 11-19 % faster in two interleaved pairs (docs/performance.md). Advice only: if
-/// the kernel declines, nothing changes but speed.
+/// IPR C120 ran 11-19 % faster in two interleaved pairs (measured 2026-12-02; docs/performance.md
+/// as of commit dabaa79). Advice only: if the kernel declines, nothing changes but speed.
 #[cfg(target_os = "linux")]
 fn advise_huge_pages(slots: &[Slot]) {
     const PAGE: usize = 4096;
