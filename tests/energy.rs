@@ -103,30 +103,32 @@ fn bulk_energy_per_atom(crystal: &Crystal, mesh: usize) -> f64 {
     let range: i32 = 3;
     let span = |axis: usize| if axis < crystal.periodic { range } else { 0 };
     let mut hops = Vec::new();
-    let mut pair_sums = vec![0.0; atoms];
-    for a in 0..atoms {
-        for b in 0..atoms {
+    let mut pair_sums = Vec::with_capacity(atoms);
+    for (a, pa) in crystal.basis.iter().enumerate() {
+        let mut sum = 0.0;
+        for (b, pb) in crystal.basis.iter().enumerate() {
             for m0 in -span(0)..=span(0) {
                 for m1 in -span(1)..=span(1) {
                     for m2 in -span(2)..=span(2) {
                         let m = [m0, m1, m2];
                         let d: [f64; 3] = std::array::from_fn(|k| {
-                            crystal.basis[b][k] - crystal.basis[a][k]
+                            pb[k] - pa[k]
                                 + (0..3)
                                     .map(|i| m[i] as f64 * crystal.cell[i][k])
                                     .sum::<f64>()
                         });
                         let r = d.iter().map(|v| v * v).sum::<f64>().sqrt();
-                        if r < 1e-9 || r >= CUTOFF {
+                        if !(1e-9..CUTOFF).contains(&r) {
                             continue;
                         }
-                        pair_sums[a] += pair_term(r).0;
+                        sum += pair_term(r).0;
                         let u = d.map(|v| v / r);
                         hops.push((a, b, m, slater_koster(u, hopping_scale(r).0)));
                     }
                 }
             }
         }
+        pair_sums.push(sum);
     }
     let repulsive: f64 = pair_sums.iter().map(|&x| embedding(x).0).sum();
     let points: usize = mesh.pow(crystal.periodic as u32);
