@@ -11,6 +11,9 @@ use cagerank::energy::params::{
     V_SP_SIGMA, V_SS_SIGMA,
 };
 use cagerank::energy::{self, EnergyError, Evaluator, Settings};
+use cagerank::enumerate::{find_by_number, Spec};
+use cagerank::score::symmetry::{symmetry, PointGroup};
+use cagerank::spiral::canonical_spiral;
 use cagerank::spiral::Spiral;
 use nalgebra::DMatrix;
 use proptest::prelude::*;
@@ -557,4 +560,120 @@ fn wrong_starting_geometries_are_errors() {
         energy::relax_from(&cage, &bad, 0, Settings::default()),
         Err(EnergyError::NonFiniteCoordinate { atom: 7 })
     ));
+}
+
+// ---------------------------------------------------------------------------------------------
+// 4. An independent numpy implementation at fixed geometries (scripts/reference_tb.py).
+// ---------------------------------------------------------------------------------------------
+
+const TB_DATA: &str = concat!(env!("CARGO_MANIFEST_DIR"), "/tests/data/tb");
+
+fn isomer(atoms: u64, ipr: bool, number: u64) -> Cage {
+    find_by_number(&Spec::fullerene(atoms, ipr).expect("valid size"), number)
+        .expect("the isomer exists")
+        .spiral
+        .to_cage()
+}
+
+/// The cages whose geometries are committed under tests/data/tb: (file, cage, point group).
+fn reference_cages() -> Vec<(&'static str, Cage, PointGroup)> {
+    vec![
+        ("c60_start.xyz", c60(), PointGroup::Ih),
+        ("c60_distorted.xyz", c60(), PointGroup::Ih),
+        // from memory: Atlas of Fullerenes (1995), C70-D5h spiral.
+        (
+            "c70_start.xyz",
+            Spiral::from_pentagon_indices(70, &[1, 7, 9, 11, 13, 15, 27, 29, 31, 33, 35, 37])
+                .expect("C70 spiral winds")
+                .to_cage(),
+            PointGroup::Dh(5),
+        ),
+        // C82:9 (C2v), the cage of La@C82, and C84:23 (D2d), a major C84 isomer (IPR numbers,
+        // from memory: Atlas of Fullerenes 1995).
+        ("c82_9_start.xyz", isomer(82, true, 9), PointGroup::Cv(2)),
+        ("c84_23_start.xyz", isomer(84, true, 23), PointGroup::Dd(2)),
+    ]
+}
+
+/// Regenerates the committed geometries (force-field starts, and the distorted C60 of the force
+/// check). Run once by hand: `cargo test --release --test energy -- --ignored write_reference`.
+#[test]
+#[ignore]
+fn write_reference_geometries() {
+    for (file, cage, group) in reference_cages() {
+        let canonical = canonical_spiral(&cage).expect("the cage has a spiral");
+        assert_eq!(
+            symmetry(&cage, &canonical.automorphisms).point_group,
+            group,
+            "{file}"
+        );
+        let coords: Vec<[f64; 3]> = if file == "c60_distorted.xyz" {
+            distorted_c60()
+                .chunks(3)
+                .map(|c| [c[0], c[1], c[2]])
+                .collect()
+        } else {
+            cagerank::geometry::relax(&cage).expect("embeds").coords
+        };
+        let mut text = Vec::new();
+        let comment = format!("{file}: {} atoms, force-field geometry", cage.atoms());
+        cagerank::export::xyz::write(&mut text, &comment, &coords).expect("writes to memory");
+        std::fs::write(format!("{TB_DATA}/{file}"), text).expect("writes the file");
+    }
+}
+
+// scripts/reference_tb.py (numpy, written independently from the published formulas) at the
+// committed geometries; its output is tests/data/tb/reference.json, made with the command it
+// records. Agreement to 1e-6 eV (and eV/Å for the forces).
+#[test]
+fn energies_and_forces_agree_with_the_numpy_reference() {
+    let text = std::fs::read_to_string(format!("{TB_DATA}/reference.json")).unwrap();
+    let reference: serde_json::Value = serde_json::from_str(&text).unwrap();
+    let cases = reference["cases"].as_array().unwrap();
+    assert_eq!(cases.len(), 7);
+    for case in cases {
+        let file = case["file"].as_str().unwrap();
+        let charge = case["charge"].as_i64().unwrap() as i32;
+        let xyz = std::fs::read_to_string(format!("{TB_DATA}/{file}")).unwrap();
+        let x = flat(&cagerank::export::xyz::parse(&xyz).unwrap().coords);
+        let mut evaluator = Evaluator::new(x.len() / 3, charge).unwrap();
+        let mut grad = vec![0.0; x.len()];
+        let total = evaluator.energy_gradient(&x, &mut grad);
+        let parts = evaluator.parts();
+        let frontier = evaluator.frontier();
+        let max_force = grad
+            .chunks(3)
+            .map(|g| g.iter().map(|v| v * v).sum::<f64>().sqrt())
+            .fold(0.0, f64::max);
+        let norm = grad.iter().map(|v| v * v).sum::<f64>().sqrt();
+        let expect = |key: &str, value: f64| {
+            let want = case[key].as_f64().unwrap();
+            assert!(
+                (value - want).abs() < 1e-6,
+                "{file} Q {charge} {key}: {value} vs {want}"
+            );
+        };
+        assert_eq!(
+            case["electrons"].as_u64(),
+            Some(evaluator.electrons() as u64)
+        );
+        expect("band_ev", parts.band_ev);
+        expect("repulsive_ev", parts.repulsive_ev);
+        expect("total_ev", total);
+        expect("homo_ev", frontier.homo_ev);
+        expect("lumo_ev", frontier.lumo_ev);
+        expect("gap_ev", frontier.gap_ev);
+        expect("max_force", max_force);
+        expect("gradient_norm", norm);
+        assert_eq!(
+            case["partly_filled"].as_bool(),
+            Some(frontier.partly_filled)
+        );
+        // The odd cases are SOMOs on cages with no degenerate frontier level.
+        assert_eq!(
+            frontier.somo.is_some(),
+            evaluator.electrons() % 2 == 1,
+            "{file}"
+        );
+    }
 }
