@@ -19,6 +19,12 @@ pub const BOND_MAX: f64 = 1.8;
 /// no source).
 const PERTURBATION: f64 = 0.015;
 
+/// Inverse stiffness (Å²/eV) for L-BFGS steps without curvature information: about one over the
+/// stiffness of a carbon atom held by three C–C bonds of ~6 mdyn/Å ≈ 37 eV/Å² each (from memory:
+/// typical aromatic C–C stretch force constants), so the first step does not overshoot on large
+/// cages (common practice, no source).
+const INVERSE_STIFFNESS: f64 = 0.02;
+
 /// Relaxes `cage` with charge `charge` from the force-field geometry of
 /// [`crate::geometry::relax`].
 pub fn relax(cage: &Cage, charge: i32, settings: Settings) -> Result<Relaxed, EnergyError> {
@@ -65,21 +71,28 @@ pub fn relax_from(
     Ok(best)
 }
 
-/// One L-BFGS run from `x`, then an energy and force evaluation at the final point for the
-/// reported parts and frontier (the minimiser's last call may have been a rejected trial step).
+/// One L-BFGS run from `x`; the reported parts and frontier are the evaluator's at the final
+/// point.
 fn run(evaluator: &mut Evaluator, mut x: Vec<f64>, settings: Settings) -> Relaxed {
     let outcome = minimise::lbfgs(
         &mut x,
         minimise::Settings {
             max_force: settings.max_force,
             max_iterations: settings.max_iterations,
+            initial_inverse_stiffness: Some(INVERSE_STIFFNESS),
             ..minimise::Settings::default()
         },
         |p, g| evaluator.energy_gradient(p, g),
     );
-    let mut grad = vec![0.0; x.len()];
-    let energy = evaluator.energy_gradient(&x, &mut grad);
-    let max_force = max_atom_norm(&grad);
+    // A converged run's last evaluation was at the final point; otherwise it may have been a
+    // rejected trial step, so the final point is evaluated again.
+    let (energy, max_force) = if outcome.converged {
+        (outcome.value, outcome.max_force)
+    } else {
+        let mut grad = vec![0.0; x.len()];
+        let energy = evaluator.energy_gradient(&x, &mut grad);
+        (energy, max_atom_norm(&grad))
+    };
     let parts = evaluator.parts();
     Relaxed {
         coords: centred(&x),

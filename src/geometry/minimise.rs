@@ -14,6 +14,11 @@ pub struct Settings {
     pub max_iterations: usize,
     /// Number of correction pairs kept.
     pub memory: usize,
+    /// Inverse stiffness (length² per energy unit) for steps taken without curvature pairs (the
+    /// first, and after a restart): the trial step is this times the force. `None` moves the
+    /// atom with the largest force by 0.1 length units instead, which needs no knowledge of the
+    /// function's scale but overshoots on large stiff systems.
+    pub initial_inverse_stiffness: Option<f64>,
 }
 
 impl Default for Settings {
@@ -22,6 +27,7 @@ impl Default for Settings {
             max_force: 1e-6,
             max_iterations: 20_000,
             memory: 12,
+            initial_inverse_stiffness: None,
         }
     }
 }
@@ -178,10 +184,10 @@ pub fn lbfgs(
             dir.iter_mut().zip(&g).for_each(|(d, gi)| *d = -gi);
             slope = dot(&dir, &g);
         }
-        let mut step = if history.len == 0 {
-            0.1 / force.max(1e-12)
-        } else {
-            1.0
+        let mut step = match (history.len, settings.initial_inverse_stiffness) {
+            (0, Some(h0)) => h0,
+            (0, None) => 0.1 / force.max(1e-12),
+            _ => 1.0,
         };
         let accepted = loop {
             for i in 0..n {
