@@ -356,6 +356,8 @@ fn c60_relaxes_to_icosahedral_bonds_energy_and_gap() {
     // Hedberg et al., Science 254 (1991) 410: 1.401(10) Å and 1.458(6) Å.
     assert!((r66 - 1.401).abs() < 0.010 && (r65 - 1.458).abs() < 0.006);
     // Computed from the published parameters (domain notes §7): -8.0085 eV/atom, gap 1.62 eV.
+    // This model gives 1.6147 eV here (the numpy reference agrees at fixed geometries, and a
+    // 1e-5 eV/Å force threshold changes nothing), so the gap is checked to 0.01 eV.
     let per_atom = relaxed.energy_ev / 60.0;
     assert!((per_atom + 8.0085).abs() < 1e-4, "{per_atom}");
     assert!(
@@ -676,4 +678,127 @@ fn energies_and_forces_agree_with_the_numpy_reference() {
             "{file}"
         );
     }
+}
+
+// ---------------------------------------------------------------------------------------------
+// Large cages.
+// ---------------------------------------------------------------------------------------------
+
+/// Icosahedral C540: the leapfrog of the leapfrog of C60 (each leapfrog triples the atoms and
+/// keeps the point group: Fowler & Steer 1987, from memory), the Goldberg cage (3,3).
+/// Ignored: about 1.5-2.5 min on one core (37 evaluations of a 2160-orbital Hamiltonian). Run with
+/// `cargo test --release --test energy -- --ignored c540 --nocapture`.
+#[test]
+#[ignore]
+fn c540_relaxes_keeping_its_bonds_between_c60_and_graphene() {
+    let cage = c60().leapfrog().leapfrog();
+    let canonical = canonical_spiral(&cage).expect("C540 has a spiral");
+    assert_eq!(
+        symmetry(&cage, &canonical.automorphisms).point_group,
+        PointGroup::Ih
+    );
+    let clock = std::time::Instant::now();
+    let relaxed = energy::relax(&cage, 0, Settings::default()).unwrap();
+    eprintln!(
+        "C540-Ih: {:.1} s, {} iterations, {:.5} eV/atom, gap {:.3} eV",
+        clock.elapsed().as_secs_f64(),
+        relaxed.iterations,
+        relaxed.energy_ev / 540.0,
+        relaxed.frontier.gap_ev
+    );
+    assert!(relaxed.converged && relaxed.graph_kept && !relaxed.perturbed);
+    // Flatter than C60, so lower per atom, but still above flat graphene (both computed from the
+    // published parameters, domain notes §7).
+    let per_atom = relaxed.energy_ev / 540.0;
+    assert!(per_atom < -8.0085 && per_atom > -8.407, "{per_atom}");
+}
+
+// ---------------------------------------------------------------------------------------------
+// Allocation: the workspace and the minimiser allocate up front, not per evaluation or step.
+// ---------------------------------------------------------------------------------------------
+
+/// Counts allocations made by the current thread (tests run on several threads at once).
+struct CountingAllocator;
+
+thread_local! {
+    static ALLOCATIONS: std::cell::Cell<usize> = const { std::cell::Cell::new(0) };
+}
+
+unsafe impl std::alloc::GlobalAlloc for CountingAllocator {
+    unsafe fn alloc(&self, layout: std::alloc::Layout) -> *mut u8 {
+        ALLOCATIONS.with(|c| c.set(c.get() + 1));
+        unsafe { std::alloc::System.alloc(layout) }
+    }
+    unsafe fn dealloc(&self, ptr: *mut u8, layout: std::alloc::Layout) {
+        unsafe { std::alloc::System.dealloc(ptr, layout) }
+    }
+}
+
+#[global_allocator]
+static COUNTER: CountingAllocator = CountingAllocator;
+
+fn allocations() -> usize {
+    ALLOCATIONS.with(|c| c.get())
+}
+
+#[test]
+fn an_evaluation_allocates_nothing() {
+    let x = distorted_c60();
+    let mut evaluator = Evaluator::new(60, -1).unwrap();
+    let mut grad = vec![0.0; x.len()];
+    // The first evaluation on a thread may let faer's matrix-multiply kernels set up their
+    // per-thread packing buffers (one allocation, seen when no other faer call ran here first).
+    evaluator.energy_gradient(&x, &mut grad);
+    let before = allocations();
+    for _ in 0..3 {
+        evaluator.energy_gradient(&x, &mut grad);
+        evaluator.energy(&x);
+    }
+    assert_eq!(allocations() - before, 0);
+}
+
+#[test]
+fn the_minimiser_allocates_the_same_however_many_steps_it_takes() {
+    use cagerank::geometry::minimise::{lbfgs, Settings as MinSettings};
+    // A stiff quadratic bowl, sum of (i+1) x_i^2: more steps for a tighter threshold.
+    let count = |max_force: f64| {
+        let mut x = vec![1.0; 30];
+        let before = allocations();
+        let out = lbfgs(
+            &mut x,
+            MinSettings {
+                max_force,
+                memory: 4,
+                ..MinSettings::default()
+            },
+            |p, g| {
+                let mut e = 0.0;
+                for (i, (v, gi)) in p.iter().zip(g.iter_mut()).enumerate() {
+                    e += (i + 1) as f64 * v * v;
+                    *gi = 2.0 * (i + 1) as f64 * v;
+                }
+                e
+            },
+        );
+        (allocations() - before, out.iterations)
+    };
+    let (loose, few) = count(1e-1);
+    let (tight, many) = count(1e-9);
+    assert!(many > few + 5, "{few} {many}");
+    assert_eq!(loose, tight);
+}
+
+#[test]
+fn undefined_geometries_give_nan_not_a_panic() {
+    let mut evaluator = Evaluator::new(60, 0).unwrap();
+    let mut grad = vec![0.0; 180];
+    let mut x = distorted_c60();
+    x[4] = f64::NAN;
+    assert!(evaluator.energy_gradient(&x, &mut grad).is_nan());
+    assert!(grad.iter().all(|g| g.is_nan()) && evaluator.parts().band_ev.is_nan());
+    let mut x = distorted_c60();
+    x.copy_within(0..3, 3);
+    assert!(evaluator.energy(&x).is_nan());
+    // The workspace is still good afterwards.
+    assert!(evaluator.energy(&distorted_c60()).is_finite());
 }

@@ -130,12 +130,16 @@ impl Evaluator {
     }
 
     /// Total energy (eV) at flat coordinates `[x0, y0, z0, x1, ...]` (Å); fills `grad` with
-    /// dE/dx (eV/Å). Allocates nothing.
+    /// dE/dx (eV/Å). Allocates nothing. Coordinates that are not finite, or two atoms at the same
+    /// place, give NaN energy and gradient (a minimiser then rejects the step).
     pub fn energy_gradient(&mut self, coords: &[f64], grad: &mut [f64]) -> f64 {
         assert_eq!(coords.len(), 3 * self.atoms, "one xyz triple per atom");
         assert_eq!(grad.len(), coords.len(), "gradient matches coordinates");
         let repulsive = self.neighbours_and_repulsion(coords);
-        self.diagonalise(ComputeEigenvectors::Yes);
+        if !self.diagonalise(ComputeEigenvectors::Yes) {
+            grad.iter_mut().for_each(|g| *g = f64::NAN);
+            return self.undefined();
+        }
         let occupied = self.occupy();
         self.weigh_occupied(occupied);
         grad.iter_mut().for_each(|g| *g = 0.0);
@@ -143,13 +147,32 @@ impl Evaluator {
         self.parts.band_ev + repulsive
     }
 
-    /// Total energy (eV) at flat coordinates (Å), without forces (eigenvalues only).
+    /// Total energy (eV) at flat coordinates (Å), without forces (eigenvalues only); NaN where
+    /// [`Self::energy_gradient`] gives NaN.
     pub fn energy(&mut self, coords: &[f64]) -> f64 {
         assert_eq!(coords.len(), 3 * self.atoms, "one xyz triple per atom");
         let repulsive = self.neighbours_and_repulsion(coords);
-        self.diagonalise(ComputeEigenvectors::No);
+        if !self.diagonalise(ComputeEigenvectors::No) {
+            return self.undefined();
+        }
         self.occupy();
         self.parts.band_ev + repulsive
+    }
+
+    /// Marks the last evaluation as undefined (NaN everywhere) and returns NaN.
+    fn undefined(&mut self) -> f64 {
+        self.parts = EnergyParts {
+            band_ev: f64::NAN,
+            repulsive_ev: f64::NAN,
+        };
+        self.frontier = Frontier {
+            homo_ev: f64::NAN,
+            lumo_ev: f64::NAN,
+            gap_ev: f64::NAN,
+            somo: None,
+            partly_filled: false,
+        };
+        f64::NAN
     }
 
     /// Builds the pair list and the repulsive energy; leaves f'(x_i) in `embed_slope`.
@@ -193,8 +216,9 @@ impl Evaluator {
         repulsive
     }
 
-    /// Fills the lower triangle of H and diagonalises it.
-    fn diagonalise(&mut self, want: ComputeEigenvectors) {
+    /// Fills the lower triangle of H and diagonalises it; false if H is not finite (non-finite
+    /// or coinciding atoms) or the solver fails.
+    fn diagonalise(&mut self, want: ComputeEigenvectors) -> bool {
         let h = &mut self.hamiltonian;
         h.fill(0.0);
         for a in 0..self.atoms {
@@ -214,19 +238,26 @@ impl Evaluator {
                 }
             }
         }
+        if !self
+            .pairs
+            .iter()
+            .all(|p| p.s.is_finite() && p.u.iter().all(|v| v.is_finite()))
+        {
+            return false;
+        }
         let vectors = (want == ComputeEigenvectors::Yes).then(|| self.vectors.as_mut());
-        evd::self_adjoint_evd(
+        let solved = evd::self_adjoint_evd(
             self.hamiltonian.as_ref(),
             self.levels.as_mut(),
             vectors,
             self.par,
             MemStack::new(&mut self.scratch),
             Default::default(),
-        )
-        .expect("invariant: the symmetric eigensolver converges on a finite Hamiltonian");
+        );
         for (k, v) in self.level_list.iter_mut().enumerate() {
             *v = self.levels[k];
         }
+        solved.is_ok()
     }
 
     /// Occupations, band energy and frontier; returns how many levels hold electrons.
