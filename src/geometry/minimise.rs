@@ -14,11 +14,6 @@ pub struct Settings {
     pub max_iterations: usize,
     /// Number of correction pairs kept.
     pub memory: usize,
-    /// Inverse stiffness (length² per energy unit) for steps taken without curvature pairs (the
-    /// first, and after a restart): the trial step is this times the force. `None` moves the
-    /// atom with the largest force by 0.1 length units instead, which needs no knowledge of the
-    /// function's scale but overshoots on large stiff systems.
-    pub initial_inverse_stiffness: Option<f64>,
 }
 
 impl Default for Settings {
@@ -27,7 +22,6 @@ impl Default for Settings {
             max_force: 1e-6,
             max_iterations: 20_000,
             memory: 12,
-            initial_inverse_stiffness: None,
         }
     }
 }
@@ -60,6 +54,8 @@ struct History {
     y: Vec<f64>,
     rho: Vec<f64>,
     alpha: Vec<f64>,
+    /// Room for P⁻¹y when a preconditioner scales the initial inverse Hessian.
+    temp: Vec<f64>,
     /// Slot of the oldest pair, and how many pairs are stored.
     first: usize,
     len: usize,
@@ -74,6 +70,7 @@ impl History {
             y: vec![0.0; n * memory],
             rho: vec![0.0; memory],
             alpha: vec![0.0; memory],
+            temp: vec![0.0; n],
             first: 0,
             len: 0,
         }
@@ -128,8 +125,10 @@ impl History {
         self.rho[t] = 1.0 / sy;
     }
 
-    /// The two-loop recursion: writes -H g into `dir` for the implicit inverse Hessian H.
-    fn direction(&mut self, g: &[f64], dir: &mut [f64]) {
+    /// The two-loop recursion: writes -H g into `dir` for the implicit inverse Hessian H, whose
+    /// initial guess is γ I, or γ P⁻¹ with the preconditioner's P⁻¹ (γ = sᵀy / yᵀP⁻¹y from the
+    /// newest pair; Nocedal & Wright 2006, eq. 7.20 with a preconditioned H0).
+    fn direction(&mut self, g: &[f64], dir: &mut [f64], precondition: Option<&mut Precondition>) {
         dir.copy_from_slice(g);
         for k in (0..self.len).rev() {
             let (s, y, rho) = self.pair(k);
@@ -138,7 +137,18 @@ impl History {
             let slot = self.slot(k);
             self.alpha[slot] = a;
         }
-        if self.len > 0 {
+        if let Some(solve) = precondition {
+            solve(dir);
+            if self.len > 0 {
+                let t = self.slot(self.len - 1);
+                let y = &self.y[t * self.n..][..self.n];
+                self.temp.copy_from_slice(y);
+                solve(&mut self.temp);
+                let (s, y, _) = self.pair(self.len - 1);
+                let gamma = dot(s, y) / dot(y, &self.temp);
+                dir.iter_mut().for_each(|q| *q *= gamma);
+            }
+        } else if self.len > 0 {
             let (s, y, _) = self.pair(self.len - 1);
             let gamma = dot(s, y) / dot(y, y);
             dir.iter_mut().for_each(|q| *q *= gamma);
@@ -153,11 +163,35 @@ impl History {
     }
 }
 
+/// Applies P⁻¹ in place for a symmetric positive definite preconditioner P whose scale is that
+/// of the function's Hessian, so that -P⁻¹g is a sensible first step.
+pub type Precondition<'a> = dyn FnMut(&mut [f64]) + 'a;
+
 /// Minimises `f` from `x` in place. All buffers are allocated once before the first iteration.
 pub fn lbfgs(
     x: &mut [f64],
     settings: Settings,
+    f: impl FnMut(&[f64], &mut [f64]) -> f64,
+) -> Outcome {
+    minimise(x, settings, f, None)
+}
+
+/// [`lbfgs`] with a preconditioner: the initial inverse Hessian of every two-loop recursion is
+/// γ P⁻¹ instead of γ I, and steps without curvature pairs go to -P⁻¹g.
+pub fn lbfgs_preconditioned(
+    x: &mut [f64],
+    settings: Settings,
+    f: impl FnMut(&[f64], &mut [f64]) -> f64,
+    precondition: &mut Precondition,
+) -> Outcome {
+    minimise(x, settings, f, Some(precondition))
+}
+
+fn minimise(
+    x: &mut [f64],
+    settings: Settings,
     mut f: impl FnMut(&[f64], &mut [f64]) -> f64,
+    mut precondition: Option<&mut Precondition>,
 ) -> Outcome {
     let n = x.len();
     let mut g = vec![0.0; n];
@@ -176,18 +210,20 @@ pub fn lbfgs(
                 converged: true,
             };
         }
-        history.direction(&g, &mut dir);
+        history.direction(&g, &mut dir, precondition.as_deref_mut());
         let mut slope = dot(&dir, &g);
         if slope >= 0.0 {
-            // Curvature information went stale: restart from steepest descent.
+            // Curvature information went stale: restart from (preconditioned) steepest descent.
             history.clear();
-            dir.iter_mut().zip(&g).for_each(|(d, gi)| *d = -gi);
+            history.direction(&g, &mut dir, precondition.as_deref_mut());
             slope = dot(&dir, &g);
         }
-        let mut step = match (history.len, settings.initial_inverse_stiffness) {
-            (0, Some(h0)) => h0,
-            (0, None) => 0.1 / force.max(1e-12),
-            _ => 1.0,
+        // Without curvature pairs and without a preconditioner nothing fixes the scale: move the
+        // atom with the largest force by 0.1 length units.
+        let mut step = if history.len == 0 && precondition.is_none() {
+            0.1 / force.max(1e-12)
+        } else {
+            1.0
         };
         let accepted = loop {
             for i in 0..n {
@@ -251,5 +287,33 @@ mod tests {
             (x[0] - 1.0).abs() < 1e-6 && (x[1] - 1.0).abs() < 1e-6,
             "{x:?}"
         );
+    }
+
+    // With P equal to the Hessian of a quadratic, -P⁻¹g is Newton's step: one step to the
+    // minimum whatever the conditioning (Nocedal & Wright 2006, section 3.3).
+    #[test]
+    fn an_exact_preconditioner_solves_a_quadratic_in_one_step() {
+        let stiffness: Vec<f64> = (0..30).map(|i| 10f64.powi(i % 5)).collect();
+        let quadratic = |p: &[f64], g: &mut [f64]| {
+            let mut e = 0.0;
+            for ((v, gi), k) in p.iter().zip(g.iter_mut()).zip(&stiffness) {
+                e += 0.5 * k * (v - 1.0).powi(2);
+                *gi = k * (v - 1.0);
+            }
+            e
+        };
+        let settings = Settings {
+            max_force: 1e-8,
+            ..Settings::default()
+        };
+        let mut x = vec![0.0; 30];
+        let plain = lbfgs(&mut x, settings, quadratic);
+        let mut x = vec![0.0; 30];
+        let mut newton = |v: &mut [f64]| v.iter_mut().zip(&stiffness).for_each(|(vi, k)| *vi /= k);
+        let out = lbfgs_preconditioned(&mut x, settings, quadratic, &mut newton);
+        assert!(out.converged && plain.converged);
+        assert_eq!(out.iterations, 1);
+        assert!(plain.iterations > 5, "{plain:?}");
+        assert!(x.iter().all(|v| (v - 1.0).abs() < 1e-12));
     }
 }
