@@ -686,7 +686,8 @@ fn energies_and_forces_agree_with_the_numpy_reference() {
 
 /// Icosahedral C540: the leapfrog of the leapfrog of C60 (each leapfrog triples the atoms and
 /// keeps the point group: Fowler & Steer 1987, from memory), the Goldberg cage (3,3).
-/// Ignored: about 1.5-2.5 min on one core (37 evaluations of a 2160-orbital Hamiltonian). Run with
+/// Ignored: about 1 min on one core (about 17 evaluations of a 2160-orbital Hamiltonian, 2-4 s
+/// each). Run with
 /// `cargo test --release --test energy -- --ignored c540 --nocapture`.
 #[test]
 #[ignore]
