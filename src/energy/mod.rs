@@ -4,7 +4,8 @@
 //! Graph descriptors rank the experimentally made isomers poorly; a relaxed tight-binding energy
 //! is the next cheapest screen. [`Evaluator`] gives the energy and analytic forces of one
 //! geometry in a preallocated workspace; [`relax`] and [`relax_from`] minimise it with the L-BFGS
-//! of [`crate::geometry::minimise`] from the force-field geometry (or a given one).
+//! of [`crate::geometry::minimise`], preconditioned with the bond graph's Laplacian, from the
+//! force-field geometry (or a given one).
 //!
 //! **Electrons.** A cage of n atoms and charge Q has N_el = 4n - Q valence electrons (an
 //! endohedral such as La@C82 is modelled as the cage ion, C82 with Q = -3). Levels are grouped
