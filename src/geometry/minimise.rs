@@ -3,7 +3,9 @@
 //! Optimization*, 2nd ed. 2006, algorithms 7.4 and 3.1).
 //!
 //! It knows nothing about chemistry: it minimises any smooth function given as a closure that
-//! returns the value and fills the gradient. Convergence is judged on the largest per-atom force
+//! returns the value and fills the gradient, optionally with a preconditioner (a closure that
+//! applies P⁻¹) as the initial inverse Hessian. Every buffer, including the ring of correction
+//! pairs, is allocated before the first step, so a long run allocates no more than a short one. Convergence is judged on the largest per-atom force
 //! (groups of three coordinates), the measure a chemist reads.
 
 /// When to stop.
