@@ -9,6 +9,7 @@ pub mod automorphism;
 pub mod cage;
 pub mod catalogue;
 pub mod draw;
+pub mod energy;
 pub mod enumerate;
 pub mod export;
 pub mod geometry;
