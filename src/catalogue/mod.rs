@@ -151,7 +151,15 @@ pub fn data_file_name(face_set: FaceSet, atoms: u32, ipr: bool, charge: i32) -> 
 
 /// The data files in a catalogue directory, sorted by name.
 pub fn data_files(dir: &Path) -> Result<Vec<PathBuf>, CatalogueError> {
-    let entries = std::fs::read_dir(dir).map_err(|e| CatalogueError::io("list", dir, e))?;
+    let entries = std::fs::read_dir(dir).map_err(|e| {
+        if e.kind() == io::ErrorKind::NotFound {
+            CatalogueError::NoDirectory {
+                dir: dir.to_path_buf(),
+            }
+        } else {
+            CatalogueError::io("list", dir, e)
+        }
+    })?;
     let mut out = Vec::new();
     for entry in entries {
         let path = entry
@@ -214,6 +222,8 @@ pub enum CatalogueError {
     Locked { dir: PathBuf, holder: String },
     /// The catalogue directory cannot be written to.
     ReadOnly { dir: PathBuf },
+    /// The catalogue directory does not exist.
+    NoDirectory { dir: PathBuf },
     /// Existing files belong to a different run than the one requested.
     RunMismatch { path: PathBuf, detail: String },
     /// Shards that cannot be merged.
@@ -267,6 +277,7 @@ impl CatalogueError {
                     | CatalogueError::Missing { .. }
                     | CatalogueError::Request(_)
                     | CatalogueError::ReadOnly { .. }
+                    | CatalogueError::NoDirectory { .. }
             )
     }
 }
@@ -311,6 +322,12 @@ impl fmt::Display for CatalogueError {
                 write!(f, "catalogue {} has no {what}", dir.display())
             }
             CatalogueError::Request(msg) => f.write_str(msg),
+            CatalogueError::NoDirectory { dir } => write!(
+                f,
+                "catalogue directory {} does not exist; give an existing one with --catalogue DIR \
+                 (or set CAGERANK_CATALOGUE), or build one with `cagerank enumerate SIZES --catalogue DIR`",
+                dir.display()
+            ),
             CatalogueError::BadRecord { unit, detail } => {
                 write!(f, "unit {unit}: record cannot be stored ({detail})")
             }

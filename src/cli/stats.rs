@@ -76,9 +76,9 @@ fn text_block(s: &FileStats) -> Vec<String> {
         .shard
         .map_or(String::new(), |k| format!(" [shard {k}]"));
     let mut lines = vec![format!(
-        "{}{shard}: charge {:+}, {}, {} IPR, {} chiral",
+        "{}{shard}: charge {}, {}, {} IPR, {} chiral",
         s.info.label(),
-        s.info.charge,
+        charge_text(s.info.charge),
         counted(s.records, "isomer", "isomers"),
         s.ipr,
         s.chiral
@@ -130,6 +130,15 @@ fn histogram_lines(lines: &mut Vec<String>, title: &str, h: &Histogram) {
     }
 }
 
+/// "0", "-6", "+2".
+fn charge_text(q: i32) -> String {
+    if q == 0 {
+        "0".to_string()
+    } else {
+        format!("{q:+}")
+    }
+}
+
 /// One line naming the charges of the runs not shown, if any.
 fn other_charges(others: &[FileStats]) -> Option<String> {
     let mut counts = std::collections::BTreeMap::<i32, u64>::new();
@@ -139,7 +148,7 @@ fn other_charges(others: &[FileStats]) -> Option<String> {
     let first = *counts.keys().next()?;
     let list: Vec<String> = counts
         .iter()
-        .map(|(q, n)| format!("charge {q:+} ({})", counted(*n, "file", "files")))
+        .map(|(q, n)| format!("charge {} ({})", charge_text(*q), counted(*n, "file", "files")))
         .collect();
     Some(format!(
         "also held: {}; show them with --charge {first}",
