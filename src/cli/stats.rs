@@ -148,7 +148,13 @@ fn other_charges(others: &[FileStats]) -> Option<String> {
     let first = *counts.keys().next()?;
     let list: Vec<String> = counts
         .iter()
-        .map(|(q, n)| format!("charge {} ({})", charge_text(*q), counted(*n, "file", "files")))
+        .map(|(q, n)| {
+            format!(
+                "charge {} ({})",
+                charge_text(*q),
+                counted(*n, "file", "files")
+            )
+        })
         .collect();
     Some(format!(
         "also held: {}; show them with --charge {first}",
