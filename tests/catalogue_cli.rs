@@ -425,11 +425,43 @@ fn a_second_writer_is_told_who_holds_the_catalogue() {
     let _ = first.kill();
     let _ = first.wait();
     // All C64 on one thread takes several seconds, far longer than the second start.
-    assert!(still_running, "the first writer finished before the second started");
+    assert!(
+        still_running,
+        "the first writer finished before the second started"
+    );
     assert_eq!(code, 1, "{err}");
     assert!(err.contains(&format!("process {}", first.id())), "{err}");
     // The killed writer's LOCK file does not block the next run.
     let (code, _, err) = run(&["enumerate", "24", "--quiet"], Some(&dir));
     assert_eq!(code, 0, "{err}");
+    let _ = std::fs::remove_dir_all(&dir);
+}
+
+#[test]
+#[cfg(target_os = "linux")]
+fn a_catalogue_that_cannot_be_written_is_called_read_only() {
+    // /proc/self refuses new files even to root (procfs); a directory without write permission
+    // does so for other users.
+    let (code, _, err) = run(
+        &["enumerate", "20", "--quiet"],
+        Some(Path::new("/proc/self")),
+    );
+    assert_eq!(code, 2, "{err}");
+    assert!(
+        err.contains("read-only") && !err.contains("being written"),
+        "{err}"
+    );
+    use std::os::unix::fs::PermissionsExt;
+    let dir = scratch("readonly");
+    std::fs::create_dir_all(&dir).unwrap();
+    std::fs::set_permissions(&dir, std::fs::Permissions::from_mode(0o555)).unwrap();
+    let root = std::fs::write(dir.join("probe"), b"").is_ok();
+    if !root {
+        assert_usage_error(
+            run(&["enumerate", "20", "--quiet"], Some(&dir)),
+            &["read-only"],
+        );
+    }
+    std::fs::set_permissions(&dir, std::fs::Permissions::from_mode(0o755)).unwrap();
     let _ = std::fs::remove_dir_all(&dir);
 }

@@ -558,7 +558,7 @@ impl View<'_> {
         &self.kekule[self.kekule_start[i]..self.kekule_start[i + 1]]
     }
 
-    /// The NMR pattern as flat (multiplicity, lines) pairs.
+    /// The NMR pattern as flat (intensity, lines) pairs.
     #[inline]
     pub fn nmr_pairs(&self, i: usize) -> impl Iterator<Item = (u32, u32)> + Clone + '_ {
         self.nmr[self.nmr_start[i]..self.nmr_start[i + 1]]
@@ -696,7 +696,7 @@ impl Chunk {
         BigUint::from_bytes_le(&self.kekule[self.kekule_start[i]..self.kekule_start[i + 1]])
     }
 
-    /// The NMR pattern as flat (multiplicity, lines) pairs.
+    /// The NMR pattern as flat (intensity, lines) pairs.
     pub fn nmr_pairs(&self, i: usize) -> impl Iterator<Item = (u32, u32)> + Clone + '_ {
         self.nmr[self.nmr_start[i]..self.nmr_start[i + 1]]
             .chunks_exact(2)

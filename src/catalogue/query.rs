@@ -256,7 +256,7 @@ impl Filter {
 }
 
 /// Whether record `i`'s NMR pattern has the normal form `want`. Stored patterns are normally
-/// already in normal form (strictly decreasing multiplicities, no zero counts), and then a
+/// already in normal form (strictly decreasing intensities, no zero counts), and then a
 /// direct comparison decides without allocating.
 fn nmr_matches(c: &View<'_>, i: usize, want: &[(u32, u32)]) -> bool {
     let pairs = c.nmr_pairs(i);

@@ -337,3 +337,33 @@ fn isomer_line(args: &Args, atoms: u64, iso: &Isomer, d: Descriptors) -> String 
         iso.spiral
     )
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn batches_cover_every_unit_once_in_order_and_follow_the_time_taken() {
+        let units: Vec<u32> = (0..5000).collect();
+        let mut b = Batches::new(2);
+        let mut seen = Vec::new();
+        let mut sizes = Vec::new();
+        // Fast units (0.1 s a batch) grow the batch, at most fourfold per step and up to the
+        // enumerator's window; then slow ones (30 s a batch) shrink it, to one unit per thread.
+        let mut step = 0;
+        while let Some(batch) = b.next(&units) {
+            seen.extend_from_slice(batch);
+            sizes.push(batch.len());
+            let took = if step < 4 { 0.1 } else { 30.0 };
+            b.took(Duration::from_secs_f64(took));
+            step += 1;
+        }
+        assert_eq!(seen, units);
+        assert_eq!(&sizes[..7], &[8, 32, 128, 512, 512, 128, 32]);
+        assert!(sizes[7..sizes.len() - 1].iter().all(|&s| s >= 2));
+        // A batch that took exactly the target keeps its size.
+        let mut b = Batches::new(1);
+        b.took(COMMIT_EVERY);
+        assert_eq!(b.size, 4);
+    }
+}
