@@ -22,6 +22,7 @@ fn info(atoms: u32) -> RunInfo {
         shard: None,
         made_by: catalogue::made_by(),
         all_starts: false,
+        charge: 0,
     }
 }
 
@@ -80,6 +81,7 @@ fn synthetic(n: usize) -> Vec<Record> {
                 homo: f(next()),
                 lumo: -f(next()),
                 gap: f(next()),
+                somo: None,
                 shell: score::Shell::ProperlyClosed,
                 pi_energy: 1.4 + f(next()) / 10.0,
                 kekule: BigUint::from(next() % 100_000_000),
@@ -131,6 +133,7 @@ fn scan(c: &mut Criterion) {
         atoms: 100,
         face_set: FaceSet::Fullerene,
         ipr: false,
+        charge: 0,
         filter: Filter::default(),
         rank_by: Vec::new(),
         top: Some(10),

@@ -2,6 +2,8 @@
 # Rebuilds the shipped catalogue in catalogues/: every isomer from C20 to C70 and every IPR
 # isomer from C60 to C100, fully scored. Resumable: if interrupted, run it again.
 # Requires `cagerank enumerate ... --catalogue DIR` (the enumerate command writing catalogues).
+# Existing files of the same runs count as finished whatever format wrote them: after a format
+# or schema change, delete catalogues/*.cgr first so that every file is rewritten.
 set -euo pipefail
 cd "$(dirname "$0")/.."
 out="${1:-catalogues}"

@@ -33,6 +33,7 @@ fn run_info(atoms: u32, ipr: bool, units: u32, shard: Option<ShardId>) -> RunInf
         shard,
         made_by: catalogue::made_by(),
         all_starts: false,
+        charge: 0,
     }
 }
 
@@ -62,6 +63,7 @@ fn random_record(rng: &mut StdRng) -> Record {
         homo,
         lumo,
         gap: homo - lumo,
+        somo: None,
         shell: SHELLS[rng.gen_range(0..SHELLS.len())],
         pi_energy: rng.gen_range(1.4..1.6),
         kekule: BigUint::from(rng.gen_range(1_000_000u64..50_000_000)),
@@ -97,7 +99,10 @@ fn without_numbers(mut records: Vec<Record>) -> Vec<Record> {
 fn record_strategy() -> impl Strategy<Value = Record> {
     let faces = proptest::collection::btree_set(1u32..=52, 0..14);
     let sizes = proptest::collection::vec(prop_oneof![Just(4u8), Just(5u8), Just(7u8)], 14);
-    let floats = proptest::array::uniform6(-1.0e6f32..1.0e6);
+    let floats = (
+        proptest::array::uniform6(-1.0e6f32..1.0e6),
+        proptest::option::of(-3.0f32..3.0),
+    );
     let ints = (
         any::<u32>(),
         proptest::array::uniform7(any::<u32>()),
@@ -112,26 +117,29 @@ fn record_strategy() -> impl Strategy<Value = Record> {
     let kekule = proptest::collection::vec(any::<u8>(), 0..20);
     let nmr = proptest::collection::vec((any::<u32>(), any::<u32>()), 0..6);
     (faces, sizes, floats, ints, codes, kekule, nmr).prop_map(
-        |(faces, sizes, f, (pa, hex, aut), (shell, group, chiral, ipr), kekule, nmr)| Record {
-            atoms: 100,
-            number: None,
-            ipr_number: None,
-            special_faces: faces.into_iter().zip(sizes).collect(),
-            ipr,
-            pentagon_adjacencies: pa,
-            pentagon_penalty_kj: f[0],
-            hexagon_neighbours: hex,
-            hexagon_strain: f[1],
-            homo: f[2],
-            lumo: f[3],
-            gap: f[4],
-            shell: SHELLS[shell],
-            pi_energy: f[5],
-            kekule: BigUint::from_bytes_le(&kekule),
-            automorphisms: aut,
-            point_group: PointGroup::from_code(group as u8).expect("in range"),
-            chiral,
-            nmr,
+        |(faces, sizes, (f, somo), (pa, hex, aut), (shell, group, chiral, ipr), kekule, nmr)| {
+            Record {
+                atoms: 100,
+                number: None,
+                ipr_number: None,
+                special_faces: faces.into_iter().zip(sizes).collect(),
+                ipr,
+                pentagon_adjacencies: pa,
+                pentagon_penalty_kj: f[0],
+                hexagon_neighbours: hex,
+                hexagon_strain: f[1],
+                homo: f[2],
+                lumo: f[3],
+                gap: f[4],
+                somo,
+                shell: SHELLS[shell],
+                pi_energy: f[5],
+                kekule: BigUint::from_bytes_le(&kekule),
+                automorphisms: aut,
+                point_group: PointGroup::from_code(group as u8).expect("in range"),
+                chiral,
+                nmr,
+            }
         },
     )
 }
@@ -199,13 +207,18 @@ fn byte_flips_in_header_index_trailer_and_chunks_are_detected_and_located() {
     let len = fs::metadata(&path).expect("meta").len();
     let header_end = chunks[0].offset;
     let index_start = chunks.last().map(|c| c.offset + c.len).expect("chunks");
-    let bad = dir.join("damaged.cgr");
+    // Under its own name (in another directory): a copy under another name is refused as such.
+    fs::create_dir_all(dir.join("damaged")).expect("dir");
+    let bad = dir.join("damaged").join("fullerene-c100-all.cgr");
     let mut rng = StdRng::seed_from_u64(3);
     let check = |at: u64, place: &str| {
         flipped(&path, at, &bad);
         let err = read_everything(&bad).expect_err("a flipped byte must be detected");
         let msg = err.to_string();
-        assert!(msg.contains("damaged.cgr"), "names the file: {msg}");
+        assert!(
+            msg.contains(&bad.display().to_string()),
+            "names the file: {msg}"
+        );
         assert!(
             msg.contains(place),
             "byte {at}: expected '{place}' in: {msg}"
@@ -241,13 +254,14 @@ fn truncated_files_are_errors_never_partial_answers() {
         &random_records(4, 5000),
     );
     let bytes = fs::read(&path).expect("read");
-    let bad = dir.join("short.cgr");
+    fs::create_dir_all(dir.join("short")).expect("dir");
+    let bad = dir.join("short").join("fullerene-c100-all.cgr");
     let mut cuts: Vec<usize> = (0..bytes.len()).step_by(997).collect();
     cuts.extend([bytes.len() - 1, bytes.len() - 24, 9, 16]);
     for cut in cuts {
         fs::write(&bad, &bytes[..cut]).expect("write");
         let err = read_everything(&bad).expect_err("truncation must be detected");
-        assert!(err.to_string().contains("short.cgr"), "{err}");
+        assert!(err.to_string().contains("short/fullerene"), "{err}");
         assert!(err.is_data_error(), "{err}");
     }
     let _ = fs::remove_dir_all(&dir);
@@ -315,6 +329,11 @@ fn unit_records(u: u32) -> Vec<Record> {
     let mut records = random_records(1000 + u as u64, n);
     for r in &mut records {
         r.special_faces[0].0 = 1;
+        // An even electron count (the runs below are C100 with even charges): no doublets,
+        // which `verify` would flag.
+        if r.shell == cagerank::score::Shell::OpenDoublet {
+            r.shell = cagerank::score::Shell::Open;
+        }
     }
     records
 }
@@ -342,10 +361,15 @@ fn resume_after_interruption_gives_identical_bytes() {
         let refs: Vec<(u32, &[Record])> = batch.iter().map(|(u, r)| (*u, r.as_slice())).collect();
         w.commit_units(&refs).expect("commit batch");
         drop(w);
-        // What kill -9 leaves behind: a lock naming a dead process, a half-written temp file.
-        // pid 4194305 exceeds Linux's pid_max (2^22), so no live process has it.
+        // What kill -9 leaves behind: a LOCK file nobody holds (empty if the kill came
+        // between creating and writing it, else naming the dead process; pid 4194305 exceeds
+        // Linux's pid_max, 2^22), and a half-written temp file.
         let host = fs::read_to_string("/proc/sys/kernel/hostname").unwrap_or_default();
-        let lock = format!("pid=4194305 host={} started=0\n", host.trim());
+        let lock = if k % 2 == 0 {
+            String::new()
+        } else {
+            format!("pid=4194305 host={} started=0\n", host.trim())
+        };
         fs::write(dir.join("LOCK"), lock).expect("stale lock");
         let work = dir.join("fullerene-c100-all.cgr.work");
         fs::write(work.join("part-00000099.part.tmp"), b"half").expect("stray temp");
@@ -476,6 +500,17 @@ fn brute_force(all: &[Record], f: &Filter, keys: &[RankKey], top: Option<usize>)
         .filter(|r| f.point_group.is_none_or(|g| r.point_group == g))
         .filter(|r| f.chiral.is_none_or(|c| r.chiral == c))
         .filter(|r| f.nmr.as_ref().is_none_or(|p| &r.nmr == p))
+        .filter(|r| {
+            f.nmr_lines
+                .is_none_or(|n| r.nmr.iter().map(|&(_, k)| u64::from(k)).sum::<u64>() == n)
+        })
+        // The grouping itself is checked against a brute force in score::nmr; here only that
+        // the filter reaches every record.
+        .filter(|r| {
+            f.nmr_merged
+                .as_ref()
+                .is_none_or(|m| cagerank::score::nmr::merges_into(&r.nmr, m))
+        })
         .filter(|r| !f.ipr_only || r.ipr)
         .cloned()
         .collect();
@@ -503,7 +538,7 @@ fn queries_equal_brute_force_filter_and_sort() {
     // Sort a stretch by pentagon adjacencies so that chunk skipping really happens.
     records[..8192].sort_by_key(|r| r.pentagon_adjacencies);
     for r in &mut records {
-        r.nmr = cagerank::catalogue::record::normalise_nmr(&r.nmr);
+        r.nmr = cagerank::score::nmr::normalise(&r.nmr);
     }
     write_file(
         &dir.join("fullerene-c100-all.cgr"),
@@ -527,13 +562,23 @@ fn queries_equal_brute_force_filter_and_sort() {
         let filter = Filter {
             max_pentagon_adjacencies: rng.gen_bool(0.5).then(|| rng.gen_range(0..4)),
             min_gap: rng.gen_bool(0.4).then(|| rng.gen_range(0.0..0.9)),
-            shell: rng.gen_bool(0.3).then(|| SHELLS[rng.gen_range(0..4)]),
+            shell: rng
+                .gen_bool(0.3)
+                .then(|| SHELLS[rng.gen_range(0..SHELLS.len())]),
             point_group: rng
                 .gen_bool(0.3)
                 .then(|| PointGroup::from_code(rng.gen_range(0..6)).expect("code")),
             nmr: rng
                 .gen_bool(0.2)
                 .then(|| all[rng.gen_range(0..all.len())].nmr.clone()),
+            nmr_lines: rng.gen_bool(0.2).then(|| rng.gen_range(40..60)),
+            nmr_merged: rng.gen_bool(0.15).then(|| {
+                // A record's pattern with two of its intensity-2 lines merged into one of 4.
+                let mut p = all[rng.gen_range(0..all.len())].nmr.clone();
+                p[0].1 -= 2;
+                p.push((4, 1));
+                cagerank::score::nmr::normalise(&p)
+            }),
             chiral: rng.gen_bool(0.3).then(|| rng.gen_bool(0.5)),
             ipr_only: false,
         };
@@ -544,6 +589,7 @@ fn queries_equal_brute_force_filter_and_sort() {
             atoms: 100,
             face_set: FaceSet::Fullerene,
             ipr,
+            charge: 0,
             filter: filter.clone(),
             rank_by: keys.clone(),
             top,
@@ -564,6 +610,7 @@ fn queries_equal_brute_force_filter_and_sort() {
         atoms: 102,
         face_set: FaceSet::Fullerene,
         ipr: false,
+        charge: 0,
         filter: Filter::default(),
         rank_by: vec![],
         top: None,
@@ -609,6 +656,7 @@ fn measure_storage_and_scan_speed() {
         atoms: 100,
         face_set: FaceSet::Fullerene,
         ipr: false,
+        charge: 0,
         filter: Filter::default(),
         rank_by: vec![],
         top: Some(10),
@@ -625,4 +673,180 @@ fn measure_storage_and_scan_speed() {
     );
     assert_eq!(top.len(), 10);
     let _ = fs::remove_dir_all(&dir);
+}
+
+fn charged(info: RunInfo, charge: i32) -> RunInfo {
+    RunInfo { charge, ..info }
+}
+
+fn small_query(atoms: u32, charge: i32) -> Query {
+    Query {
+        atoms,
+        face_set: FaceSet::Fullerene,
+        ipr: false,
+        charge,
+        filter: Filter::default(),
+        rank_by: vec![],
+        top: None,
+    }
+}
+
+#[test]
+fn runs_of_several_charges_of_one_size_sit_side_by_side() {
+    let dir = temp_dir("charges");
+    let neutral = run_info(100, false, UNITS, None);
+    full_run(&dir, neutral.clone());
+    full_run(&dir, charged(neutral.clone(), -6));
+    full_run(&dir, charged(neutral.clone(), 2));
+    for name in [
+        "fullerene-c100-all.cgr",
+        "fullerene-c100-all-q-6.cgr",
+        "fullerene-c100-all-q+2.cgr",
+    ] {
+        assert!(dir.join(name).is_file(), "{name}");
+    }
+    assert_eq!(
+        DataFile::open(&dir.join("fullerene-c100-all-q-6.cgr"))
+            .expect("open")
+            .info
+            .charge,
+        -6
+    );
+    let records: usize = (0..UNITS).map(|u| unit_records(u).len()).sum();
+    assert_eq!(
+        query(&dir, &small_query(100, -6)).expect("q").len(),
+        records
+    );
+    let msg = query(&dir, &small_query(100, -4))
+        .expect_err("no charge -4 run")
+        .to_string();
+    assert!(
+        msg.contains("charge -4") && msg.contains("cagerank enumerate 100 --charge -4 --catalogue"),
+        "{msg}"
+    );
+    assert!(!msg.contains('\n'));
+    // Resuming the charged run in the neutral run's work directory is refused.
+    let mut w = Writer::open(&dir, charged(run_info(98, false, UNITS, None), -6)).expect("open");
+    w.commit_unit(0, &[]).expect("commit");
+    drop(w);
+    fs::rename(
+        dir.join("fullerene-c98-all-q-6.cgr.work"),
+        dir.join("fullerene-c98-all.cgr.work"),
+    )
+    .expect("rename");
+    let err = Writer::open(&dir, run_info(98, false, UNITS, None)).expect_err("other charge");
+    assert!(err.is_user_error(), "{err}");
+    assert!(err.to_string().contains("charge -6"), "{err}");
+    let _ = fs::remove_dir_all(&dir);
+}
+
+#[test]
+fn a_data_file_under_another_name_is_refused_everywhere() {
+    // `cp fullerene-c42-all.cgr fullerene-c40-all.cgr` must not answer for C40.
+    let dir = temp_dir("misnamed");
+    full_run(&dir, run_info(100, false, UNITS, None));
+    fs::copy(
+        dir.join("fullerene-c100-all.cgr"),
+        dir.join("fullerene-c102-all.cgr"),
+    )
+    .expect("copy");
+    let err = query(&dir, &small_query(102, 0)).expect_err("misnamed");
+    let msg = err.to_string();
+    assert!(err.is_user_error(), "{msg}");
+    assert!(
+        msg.contains("fullerene-c102-all.cgr") && msg.contains("C100") && !msg.contains('\n'),
+        "{msg}"
+    );
+    // The same under a charged name.
+    fs::rename(
+        dir.join("fullerene-c102-all.cgr"),
+        dir.join("fullerene-c100-all-q-6.cgr"),
+    )
+    .expect("rename");
+    assert!(query(&dir, &small_query(100, -6)).is_err());
+    let report = catalogue::verify(&dir).expect("verify runs");
+    assert!(!report.is_ok());
+    // (The random test records do not wind into cages, so only the name is checked here.)
+    let bad: Vec<String> = report
+        .files
+        .iter()
+        .filter(|f| matches!(f.problem, Some(CatalogueError::RunMismatch { .. })))
+        .map(|f| f.path.display().to_string())
+        .collect();
+    assert_eq!(bad.len(), 1, "{bad:?}");
+    assert!(bad[0].ends_with("fullerene-c100-all-q-6.cgr"));
+    assert!(catalogue::stats::catalogue_stats(&dir).is_err());
+    let _ = fs::remove_dir_all(&dir);
+}
+
+#[test]
+fn a_committed_units_file_of_another_run_is_refused_on_resume() {
+    // Two unfinished runs, C100 and C98; a C98 part copied into the C100 work directory.
+    let dir = temp_dir("foreign-part");
+    for atoms in [100, 98] {
+        let mut w = Writer::open(&dir, run_info(atoms, false, UNITS, None)).expect("open");
+        // Unit 3 is empty (see `unit_records`), so it fits either size.
+        w.commit_unit(3, &unit_records(3)).expect("commit");
+    }
+    let part = "part-00000003.part";
+    let work = dir.join("fullerene-c100-all.cgr.work");
+    fs::copy(
+        dir.join("fullerene-c98-all.cgr.work").join(part),
+        work.join("part-00000006.part"),
+    )
+    .expect("copy");
+    let err = Writer::open(&dir, run_info(100, false, UNITS, None)).expect_err("foreign part");
+    assert!(err.is_user_error(), "{err}");
+    let msg = err.to_string();
+    assert!(
+        msg.contains("part-00000006.part") && msg.contains("C98"),
+        "{msg}"
+    );
+    assert!(
+        work.join("part-00000006.part").exists(),
+        "refused, not deleted"
+    );
+    let report = catalogue::verify(&dir).expect("verify runs");
+    assert_eq!(report.work_problems.len(), 1, "{:?}", report.work_problems);
+    assert!(!report.is_ok());
+    // A copy of the run's own part under another name holds its unit twice.
+    fs::remove_file(work.join("part-00000006.part")).expect("remove");
+    fs::copy(work.join(part), work.join("part-00000007.part")).expect("copy");
+    let err = Writer::open(&dir, run_info(100, false, UNITS, None)).expect_err("duplicate");
+    assert!(err.to_string().contains("unit 3"), "{err}");
+    let _ = fs::remove_dir_all(&dir);
+}
+
+#[test]
+fn shards_of_different_charges_do_not_merge() {
+    let base = temp_dir("merge-charges");
+    let a = base.join("a");
+    let b = base.join("b");
+    let shard = |k| Some(ShardId { index: k, count: 2 });
+    full_run(&a, charged(run_info(100, false, UNITS, shard(1)), -6));
+    full_run(&b, run_info(100, false, UNITS, shard(2)));
+    let err = catalogue::merge(&[a, b], &base.join("out")).expect_err("mixed charges");
+    assert!(err.is_user_error());
+    assert!(err.to_string().contains("different charges"), "{err}");
+    let _ = fs::remove_dir_all(&base);
+}
+
+#[test]
+fn files_written_by_format_2_still_read_as_neutral_runs() {
+    // Copies of the shipped catalogue as format 2 / schema 1 wrote it (before charges and the
+    // SOMO column).
+    let dir = Path::new(env!("CARGO_MANIFEST_DIR")).join("tests/data/format2");
+    let mut f = DataFile::open(&dir.join("fullerene-c20-all.cgr")).expect("format 2 opens");
+    assert_eq!(f.info.charge, 0);
+    let all = f.all_records().expect("schema 1 chunks decode");
+    assert_eq!(all.len(), 1);
+    assert_eq!(all[0].somo, None);
+    // The dodecahedron: Ih (Atlas, from memory).
+    assert_eq!(all[0].point_group.name(), "Ih");
+    let mut q = small_query(60, 0);
+    q.ipr = true;
+    let top = query(&dir, &q).expect("query on format 2");
+    assert_eq!(top.len(), 1);
+    assert_eq!(top[0].nmr, vec![(60, 1)]);
+    assert!(catalogue::verify(&dir).expect("verify").is_ok());
 }

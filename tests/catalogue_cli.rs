@@ -159,3 +159,309 @@ fn shipped_catalogue_answers_queries() {
     assert_eq!(first["number"], 1812);
     assert_eq!(first["point_group"], "Ih");
 }
+
+fn shipped_dir() -> PathBuf {
+    Path::new(env!("CARGO_MANIFEST_DIR")).join("catalogues")
+}
+
+/// Runs the binary; (exit code, stdout, stderr).
+fn run(args: &[&str], dir: Option<&Path>) -> (i32, String, String) {
+    let mut cmd = bin();
+    cmd.args(args);
+    if let Some(d) = dir {
+        cmd.arg("--catalogue").arg(d);
+    }
+    let out = cmd.output().expect("binary runs");
+    (
+        out.status.code().unwrap_or(-1),
+        String::from_utf8_lossy(&out.stdout).into_owned(),
+        String::from_utf8_lossy(&out.stderr).into_owned(),
+    )
+}
+
+/// A one-line error with exit code 2 that contains every one of `needles`.
+fn assert_usage_error(result: (i32, String, String), needles: &[&str]) {
+    let (code, _, err) = result;
+    assert_eq!(code, 2, "{err}");
+    assert_eq!(err.trim_end().lines().count(), 1, "one line: {err}");
+    for n in needles {
+        assert!(err.contains(n), "'{n}' in: {err}");
+    }
+}
+
+fn copy_shipped(into: &Path, files: &[&str]) {
+    std::fs::create_dir_all(into).unwrap();
+    for f in files {
+        std::fs::copy(shipped_dir().join(f), into.join(f)).unwrap();
+    }
+}
+
+#[test]
+fn charged_runs_get_their_own_file_and_query_finds_them_by_charge() {
+    let dir = scratch("charge");
+    copy_shipped(&dir, &["fullerene-c80-ipr.cgr"]);
+    let neutral = std::fs::read(dir.join("fullerene-c80-ipr.cgr")).unwrap();
+    let d = dir.display().to_string();
+    // Before the run: the message names the exact command that builds the charged list.
+    assert_usage_error(
+        run(
+            &["query", "--atoms", "80", "--ipr", "--charge", "-6"],
+            Some(&dir),
+        ),
+        &[&format!(
+            "cagerank enumerate 80 --ipr --charge -6 --catalogue {d}"
+        )],
+    );
+    let (code, out, err) = run(
+        &["enumerate", "80", "--ipr", "--charge", "-6", "--quiet"],
+        Some(&dir),
+    );
+    assert_eq!(code, 0, "{err}");
+    assert!(out.contains("fullerene-c80-ipr-q-6.cgr"), "{out}");
+    assert_eq!(
+        std::fs::read(dir.join("fullerene-c80-ipr.cgr")).unwrap(),
+        neutral
+    );
+    let (code, out, err) = run(
+        &[
+            "query", "--atoms", "80", "--ipr", "--charge", "-6", "--top", "1", "--format", "json",
+        ],
+        Some(&dir),
+    );
+    assert_eq!(code, 0, "{err}");
+    let first: serde_json::Value = serde_json::from_str(out.lines().next().unwrap()).unwrap();
+    // C80-Ih (IPR isomer 7) is the cage of Sc3N@C80, closed-shell as C80^6- (Stevenson et al.,
+    // Nature 401 (1999) 55, from memory); it ranks first among the anions.
+    assert_eq!(first["ipr_number"], 7);
+    assert_eq!(first["point_group"], "Ih");
+    assert_eq!(first["shell"], "properly-closed");
+    // The neutral file still answers neutral queries, with its own ranking.
+    let (code, out, _) = run(
+        &[
+            "query", "--atoms", "80", "--ipr", "--top", "1", "--format", "json",
+        ],
+        Some(&dir),
+    );
+    assert_eq!(code, 0);
+    assert_ne!(out.lines().next().unwrap(), "");
+    // stats shows the charge of each file.
+    let (_, out, _) = run(&["stats", "--charge", "-6"], Some(&dir));
+    assert!(out.contains("charge -6, 7 isomers"), "{out}");
+    let (_, out, _) = run(&["stats"], Some(&dir));
+    assert!(
+        out.contains("charge 0, 7 isomers") && out.contains("also held: charge -6"),
+        "{out}"
+    );
+    // verify checks the charged file too.
+    let (code, out, _) = run(&["verify", &d], None);
+    assert_eq!(code, 0, "{out}");
+    assert!(out.contains("charge -6"), "{out}");
+    let _ = std::fs::remove_dir_all(&dir);
+}
+
+#[test]
+fn a_copied_data_file_is_refused_by_every_reader() {
+    // cp fullerene-c42-all.cgr fullerene-c40-all.cgr; query --atoms 40 once listed 45 C42 cages.
+    let dir = scratch("copied");
+    copy_shipped(&dir, &["fullerene-c42-all.cgr"]);
+    std::fs::copy(
+        dir.join("fullerene-c42-all.cgr"),
+        dir.join("fullerene-c40-all.cgr"),
+    )
+    .unwrap();
+    assert_usage_error(
+        run(&["query", "--atoms", "40"], Some(&dir)),
+        &["fullerene-c40-all.cgr", "C42"],
+    );
+    assert_usage_error(run(&["stats"], Some(&dir)), &["fullerene-c40-all.cgr"]);
+    let (code, out, err) = run(&["verify", &dir.display().to_string()], None);
+    assert_eq!(code, 2, "{err}");
+    assert!(
+        out.contains("fullerene-c40-all.cgr: header holds C42"),
+        "{out}"
+    );
+    let _ = std::fs::remove_dir_all(&dir);
+}
+
+#[test]
+fn impossible_queries_and_bad_patterns_are_one_line_errors() {
+    let dir = shipped_dir();
+    // An odd size: no fullerene, and the suggestion is a size that has them.
+    assert_usage_error(
+        run(&["query", "--atoms", "85"], Some(&dir)),
+        &["C85", "--atoms 84"],
+    );
+    for pattern in ["0x1", "abc", "3x10,2x", "x70", "1.5x70", "3x10"] {
+        assert_usage_error(
+            run(&["query", "--atoms", "70", "--nmr", pattern], Some(&dir)),
+            &["13C NMR"],
+        );
+        assert_usage_error(
+            run(
+                &["query", "--atoms", "70", "--nmr-merged", pattern],
+                Some(&dir),
+            ),
+            &["13C NMR"],
+        );
+    }
+    let (_, _, err) = run(&["query", "--atoms", "70", "--nmr", "3x10"], Some(&dir));
+    assert!(err.contains("30 atoms") && err.contains("70"), "{err}");
+    // A missing directory gives the same exit code in every command.
+    let nowhere = scratch("nowhere");
+    let n = nowhere.display().to_string();
+    for args in [
+        vec!["query", "--atoms", "60", "--catalogue", &n],
+        vec!["stats", "--catalogue", &n],
+        vec!["verify", &n],
+        vec!["merge", &n, "--into", "/tmp/cagerank-never-written"],
+    ] {
+        let (code, _, err) = run(&args, None);
+        assert_eq!(code, 2, "{args:?}: {err}");
+        assert_eq!(err.trim_end().lines().count(), 1, "{err}");
+    }
+}
+
+#[test]
+fn nmr_patterns_are_read_and_printed_as_lines_x_intensity() {
+    let dir = shipped_dir();
+    // C70-D5h: five lines 10:10:20:20:10 (Taylor et al., Chem. Commun. 1990, 1423, from
+    // memory) = 3x10,2x20; it is the only IPR C70.
+    let (code, out, err) = run(
+        &[
+            "query",
+            "--atoms",
+            "70",
+            "--nmr",
+            "3x10,2x20",
+            "--format",
+            "csv",
+        ],
+        Some(&dir),
+    );
+    assert_eq!(code, 0, "{err}");
+    let rows: Vec<&str> = out.lines().collect();
+    assert_eq!(rows.len(), 2, "{out}");
+    assert!(
+        rows[1].contains(",D5h,") && rows[1].contains("\"3x10,2x20\""),
+        "{out}"
+    );
+    // Two of the three intensity-10 lines on one shift: 1x10,3x20 still finds it.
+    let (_, out, _) = run(
+        &[
+            "query",
+            "--atoms",
+            "70",
+            "--ipr",
+            "--nmr-merged",
+            "1x10,3x20",
+            "--format",
+            "csv",
+        ],
+        Some(&dir),
+    );
+    assert!(out.contains(",D5h,"), "{out}");
+    // C76-D2: 19 lines of intensity 4 (Ettl et al., Nature 353 (1991) 149, from memory).
+    let (_, out, _) = run(
+        &[
+            "query",
+            "--atoms",
+            "76",
+            "--ipr",
+            "--nmr-lines",
+            "19",
+            "--format",
+            "csv",
+        ],
+        Some(&dir),
+    );
+    assert!(out.contains(",D2,") && out.contains(",19x4,"), "{out}");
+    let (_, help, _) = run(&["query", "--help"], None);
+    assert!(
+        help.contains("LINESxINTENSITY") && help.contains("3x10,2x20"),
+        "{help}"
+    );
+    assert!(!help.to_lowercase().contains("multiplicity"));
+}
+
+#[test]
+fn stats_lists_sizes_in_numeric_order() {
+    let (code, out, _) = run(&["stats"], Some(&shipped_dir()));
+    assert_eq!(code, 0);
+    let at = |label: &str| {
+        out.find(label)
+            .unwrap_or_else(|| panic!("{label} in stats"))
+    };
+    assert!(at("C20 (all") < at("C24 (all") && at("C70 (all") < at("C100 (IPR"));
+    assert!(at("C98 (IPR") < at("C100 (IPR"));
+}
+
+#[test]
+fn a_second_writer_is_told_who_holds_the_catalogue() {
+    let dir = scratch("locked");
+    let mut first = bin()
+        .args([
+            "enumerate",
+            "64",
+            "--quiet",
+            "--threads",
+            "1",
+            "--catalogue",
+        ])
+        .arg(&dir)
+        .stdout(Stdio::null())
+        .stderr(Stdio::null())
+        .spawn()
+        .expect("binary starts");
+    // Wait until the first writer holds the lock and has written its details.
+    let lock = dir.join("LOCK");
+    for _ in 0..100 {
+        if std::fs::read_to_string(&lock).is_ok_and(|t| t.contains("pid=")) {
+            break;
+        }
+        std::thread::sleep(Duration::from_millis(20));
+    }
+    let (code, _, err) = run(&["enumerate", "64", "--quiet"], Some(&dir));
+    let still_running = matches!(first.try_wait(), Ok(None));
+    let _ = first.kill();
+    let _ = first.wait();
+    // All C64 on one thread takes several seconds, far longer than the second start.
+    assert!(
+        still_running,
+        "the first writer finished before the second started"
+    );
+    assert_eq!(code, 1, "{err}");
+    assert!(err.contains(&format!("process {}", first.id())), "{err}");
+    // The killed writer's LOCK file does not block the next run.
+    let (code, _, err) = run(&["enumerate", "24", "--quiet"], Some(&dir));
+    assert_eq!(code, 0, "{err}");
+    let _ = std::fs::remove_dir_all(&dir);
+}
+
+#[test]
+#[cfg(target_os = "linux")]
+fn a_catalogue_that_cannot_be_written_is_called_read_only() {
+    // /proc/self refuses new files even to root (procfs); a directory without write permission
+    // does so for other users.
+    let (code, _, err) = run(
+        &["enumerate", "20", "--quiet"],
+        Some(Path::new("/proc/self")),
+    );
+    assert_eq!(code, 2, "{err}");
+    assert!(
+        err.contains("read-only") && !err.contains("being written"),
+        "{err}"
+    );
+    use std::os::unix::fs::PermissionsExt;
+    let dir = scratch("readonly");
+    std::fs::create_dir_all(&dir).unwrap();
+    std::fs::set_permissions(&dir, std::fs::Permissions::from_mode(0o555)).unwrap();
+    let root = std::fs::write(dir.join("probe"), b"").is_ok();
+    if !root {
+        assert_usage_error(
+            run(&["enumerate", "20", "--quiet"], Some(&dir)),
+            &["read-only"],
+        );
+    }
+    std::fs::set_permissions(&dir, std::fs::Permissions::from_mode(0o755)).unwrap();
+    let _ = std::fs::remove_dir_all(&dir);
+}

@@ -62,6 +62,9 @@ fn bad_input_gives_one_line_and_exit_2() {
         vec!["spiral", "1,2,3"],
         vec!["spiral", "1,2,3,4,5,6,7,8,9,10,11,12", "--atoms", "60"],
         vec!["spiral", "1,7,x"],
+        // Charges that leave no electron pair or no empty orbital.
+        vec!["enumerate", "20", "--charge", "19"],
+        vec!["enumerate", "20", "--charge", "-19"],
     ] {
         let (code, out, err) = run(&args);
         assert_eq!(code, 2, "{args:?}: {err}");
@@ -93,4 +96,52 @@ fn beyond_the_checked_sizes_hexagon_starts_are_searched_and_skipping_them_warns(
     // Within the checked range nothing is said (pentagon starts find every cage).
     let (_, _, err) = run(&["enumerate", "98", "--count-only", "--shard", "3000/3000"]);
     assert!(err.trim().is_empty(), "{err}");
+}
+
+#[test]
+fn counts_say_1_isomer_not_1_isomers() {
+    // OEIS A007894: one C20 (the dodecahedron), two C28.
+    let (code, out, _) = run(&["enumerate", "20", "28", "--count-only", "--quiet"]);
+    assert_eq!(code, 0);
+    assert_eq!(out, "C20: 1 isomer\nC28: 2 isomers\n");
+}
+
+#[test]
+fn an_odd_electron_count_is_scored_as_a_doublet() {
+    // C82^3- (La@C82's cage, 85 pi electrons): every IPR isomer has a SOMO; the C2v cage,
+    // whose levels are all non-degenerate (C2v has only one-dimensional irreducible
+    // representations), is an open-shell doublet.
+    let (code, out, err) = run(&[
+        "enumerate",
+        "82",
+        "--ipr",
+        "--charge",
+        "-3",
+        "--json",
+        "--quiet",
+    ]);
+    assert_eq!(code, 0, "{err}");
+    let rows: Vec<serde_json::Value> = out
+        .lines()
+        .map(|l| serde_json::from_str(l).unwrap())
+        .collect();
+    // OEIS A046880: 9 IPR isomers of C82.
+    assert_eq!(rows.len(), 9);
+    for r in &rows {
+        let (homo, somo, lumo) = (
+            r["homo"].as_f64().unwrap(),
+            r["somo"].as_f64().expect("odd count has a SOMO"),
+            r["lumo"].as_f64().unwrap(),
+        );
+        assert!(homo >= somo && somo >= lumo, "{r}");
+        assert!((r["gap"].as_f64().unwrap() - (somo - lumo)).abs() < 1e-12);
+    }
+    let c2v = rows
+        .iter()
+        .find(|r| r["point_group"] == "C2v")
+        .expect("a C2v cage");
+    assert_eq!(c2v["shell"], "open-doublet");
+    // Neutral output keeps its keys: no SOMO.
+    let (_, out, _) = run(&["enumerate", "82", "--ipr", "--json", "--quiet"]);
+    assert!(!out.contains("somo"));
 }

@@ -5,7 +5,8 @@ use cagerank::cage::{Cage, EdgeId, VertexId};
 use cagerank::enumerate::{self, Options, Spec};
 use cagerank::score::bonds::{coulson_bond_orders, pauling_bond_orders, ring_pi_content};
 use cagerank::score::huckel::{
-    eigen_decomposition, eigenvalues, filled_orbitals, summarize, HuckelError,
+    eigen_decomposition, eigenvalues, filled_orbitals, occupation, summarize, HuckelError,
+    Occupation,
 };
 use cagerank::score::kekule::{
     kekule_count, kekule_count_containing, kekule_count_with_primes, kekule_structure,
@@ -466,11 +467,7 @@ fn charge_changes_the_filling() {
     assert!((hexa.homo - neutral.lumo).abs() < 1e-9);
     // C60^2- puts 2 electrons into the 3-fold t1u level: HOMO and LUMO degenerate, open shell.
     assert_eq!(summarize(&x, -2).expect("dianion").shell, Shell::Open);
-    // Odd electron counts and impossible fillings are errors, not panics.
-    assert_eq!(
-        summarize(&x, -1),
-        Err(HuckelError::OddElectrons { electrons: 61 })
-    );
+    // Impossible fillings are errors, not panics.
     assert!(matches!(
         summarize(&x, -60),
         Err(HuckelError::TooManyElectrons { .. })
@@ -479,6 +476,132 @@ fn charge_changes_the_filling() {
         summarize(&x, 60),
         Err(HuckelError::TooFewElectrons { .. })
     ));
+    // 119 electrons would fill every orbital but one, leaving no LUMO above the SOMO; one
+    // electron leaves no doubly filled orbital.
+    assert!(matches!(
+        summarize(&x, -59),
+        Err(HuckelError::TooManyElectrons { electrons: 119, .. })
+    ));
+    assert!(matches!(
+        summarize(&x, 59),
+        Err(HuckelError::TooFewElectrons { electrons: 1 })
+    ));
+    assert!(summarize(&x, -57).is_ok() && summarize(&x, 57).is_ok());
+}
+
+/// The descending spectrum from nalgebra's SymmetricEigen, an eigensolver independent of ours.
+fn nalgebra_spectrum(cage: &Cage) -> Vec<f64> {
+    let n = cage.atoms();
+    let mut a = nalgebra::DMatrix::<f64>::zeros(n, n);
+    for &[u, v] in cage.edges() {
+        a[(u as usize, v as usize)] = 1.0;
+        a[(v as usize, u as usize)] = 1.0;
+    }
+    let mut x: Vec<f64> = a.symmetric_eigen().eigenvalues.iter().copied().collect();
+    x.sort_by(|p, q| q.total_cmp(p));
+    x
+}
+
+#[test]
+fn odd_electron_counts_fill_a_singly_occupied_orbital() {
+    assert_eq!(
+        occupation(82, -3),
+        Ok(Occupation {
+            electrons: 85,
+            doubly: 42,
+            single: true
+        })
+    );
+    // C60^-: the extra electron enters the three-fold t1u LUMO of neutral C60 (x = -0.1386;
+    // domain notes section 3, numpy check). A partly filled degenerate level is an open shell,
+    // not a doublet with a level of its own.
+    let x = eigenvalues(&c60());
+    let neutral = summarize(&x, 0).expect("neutral");
+    let anion = summarize(&x, -1).expect("C60^-");
+    let somo = anion.somo.expect("odd count has a SOMO");
+    assert!((somo - -0.1386).abs() < 5e-5);
+    assert!((somo - neutral.lumo).abs() < 1e-9);
+    assert!((anion.homo - neutral.homo).abs() < 1e-9);
+    assert_eq!(anion.shell, Shell::Open);
+    assert!(anion.gap.abs() < 1e-9, "SOMO-LUMO gap inside the t1u level");
+    // C60^+: a hole in the five-fold h_u HOMO (x = (sqrt5-1)/2): open, HOMO-SOMO gap 0.
+    let cation = summarize(&x, 1).expect("C60^+");
+    assert_eq!(cation.shell, Shell::Open);
+    assert!(cation.homo_somo_gap().expect("odd").abs() < 1e-9);
+    assert!((cation.somo.expect("odd") - (5f64.sqrt() - 1.0) / 2.0).abs() < 1e-9);
+    // Even counts have no SOMO.
+    assert_eq!(neutral.somo, None);
+    assert_eq!(neutral.homo_somo_gap(), None);
+}
+
+/// The IPR isomers of C82 with their point groups, from the enumerator and scorer.
+fn c82_ipr() -> Vec<(Cage, String)> {
+    let spec = Spec::fullerene(82, true).expect("valid size");
+    let opts = Options {
+        threads: 1,
+        shard: None,
+    };
+    let mut out = Vec::new();
+    enumerate::enumerate(
+        &spec,
+        &opts,
+        |_, _| {},
+        |iso| {
+            let d = cagerank::score::describe_spiral(&iso.spiral, 0).expect("scores");
+            out.push((iso.spiral.to_cage(), d.point_group.name().to_string()));
+        },
+    )
+    .expect("enumeration runs");
+    out
+}
+
+#[test]
+fn c82_trianions_are_doublets_with_somo_from_an_independent_eigensolver() {
+    // La@C82 is paramagnetic with one unpaired electron on the cage, La3+ inside a C82^3- cage
+    // (ESR: Johnson, de Vries, Salem, Bethune, Yannoni, Nature 355 (1992) 239, from memory).
+    // 85 pi electrons: 42 doubly filled orbitals, the SOMO is the 43rd, the LUMO the 44th.
+    let isomers = c82_ipr();
+    // OEIS A046880: 9 IPR isomers of C82.
+    assert_eq!(isomers.len(), 9);
+    for (cage, group) in &isomers {
+        let reference = nalgebra_spectrum(cage);
+        let s = summarize(&eigenvalues(cage), -3).expect("C82^3-");
+        let somo = s.somo.expect("odd count");
+        assert!((s.homo - reference[41]).abs() < 1e-9, "{group}");
+        assert!((somo - reference[42]).abs() < 1e-9, "{group}");
+        assert!((s.lumo - reference[43]).abs() < 1e-9, "{group}");
+        assert!((s.gap - (reference[42] - reference[43])).abs() < 1e-9);
+        assert!((s.homo_somo_gap().expect("odd") - (reference[41] - reference[42])).abs() < 1e-9);
+        let pi = (2.0 * reference[..42].iter().sum::<f64>() + reference[42]) / 82.0;
+        assert!((s.pi_energy - pi).abs() < 1e-9);
+        // Groups with only one-dimensional irreducible representations (character tables of
+        // C1, Cs, C2, C2v) have no symmetry-degenerate levels, so the single electron sits in
+        // a level of its own: an open-shell doublet.
+        if ["C1", "Cs", "C2", "C2v"].contains(&group.as_str()) {
+            assert_eq!(s.shell, Shell::OpenDoublet, "{group}");
+        }
+        let expected = if (reference[41] - reference[42]).abs() < 1e-6
+            || (reference[42] - reference[43]).abs() < 1e-6
+        {
+            Shell::Open
+        } else {
+            Shell::OpenDoublet
+        };
+        assert_eq!(s.shell, expected, "{group}");
+    }
+    // The cage of La@C82 is C2v (Atlas isomer 9 of the IPR list, from memory).
+    assert!(isomers.iter().any(|(_, g)| g == "C2v"));
+}
+
+#[test]
+fn coulson_orders_count_the_single_electron_once() {
+    // E_pi = sum_k occ_k x_k = 2 sum over bonds of p_uv also with one orbital singly occupied.
+    for (cage, group) in c82_ipr().iter().take(3) {
+        let s = summarize(&eigenvalues(cage), -3).expect("C82^3-");
+        let p = coulson_bond_orders(cage, -3).expect("odd charge is valid");
+        let total: f64 = 2.0 * p.iter().sum::<f64>();
+        assert!((total - s.pi_energy * 82.0).abs() < 1e-9, "{group}");
+    }
 }
 
 #[test]

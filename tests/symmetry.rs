@@ -106,6 +106,8 @@ fn c76_d2_has_19_nmr_lines_of_4() {
     assert_eq!(s.point_group, PointGroup::D(2));
     assert!(s.chiral, "D2 has no improper elements");
     assert_eq!(s.nmr, vec![(4, 19)]);
+    // Written as the literature does, lines x intensity.
+    assert_eq!(cagerank::score::nmr::format_pattern(&s.nmr), "19x4");
 }
 
 #[test]

@@ -13,8 +13,11 @@ use serde::{Deserialize, Serialize};
 /// zstd level for chunks: a good size/speed trade-off for write-once data (common practice, no source).
 const ZSTD_LEVEL: i32 = 12;
 
-/// Number of `f32` descriptor columns, in this order: penalty, strain, homo, lumo, gap, pi energy.
-const FLOATS: usize = 6;
+/// Number of `f32` descriptor columns, in this order: penalty, strain, homo, lumo, gap, pi
+/// energy, SOMO (NaN when there is none, i.e. for even electron counts).
+const FLOATS: usize = 7;
+/// Float columns of schema 1 chunks, which had no SOMO column.
+const FLOATS_SCHEMA_1: usize = 6;
 
 /// On-disk columns of one chunk (serialized with postcard; integers become varints). Read back
 /// by [`Layout::parse`], not serde, so that unneeded columns can be skipped.
@@ -38,7 +41,7 @@ struct Columns {
     kekule: Vec<u8>,
     nmr_len: Vec<u32>,
     nmr: Vec<u32>,
-    /// The six float columns, each split into 4 byte planes (least significant first).
+    /// The seven float columns, each split into 4 byte planes (least significant first).
     floats: Vec<u8>,
 }
 
@@ -50,6 +53,7 @@ fn floats_of(r: &Record) -> [f32; FLOATS] {
         r.lumo,
         r.gap,
         r.pi_energy,
+        r.somo.unwrap_or(f32::NAN),
     ]
 }
 
@@ -143,6 +147,7 @@ pub struct Chunk {
     kekule_start: Vec<usize>,
     nmr: Vec<u32>,
     nmr_start: Vec<usize>,
+    /// Schema 1 chunks get a NaN SOMO column on decoding.
     floats: [Vec<f32>; FLOATS],
 }
 
@@ -290,7 +295,8 @@ struct Layout<'a> {
 }
 
 impl<'a> Layout<'a> {
-    fn parse(raw: &'a [u8]) -> Result<Layout<'a>, String> {
+    /// `floats` is the number of float columns the file's schema version stores.
+    fn parse(raw: &'a [u8], floats: usize) -> Result<Layout<'a>, String> {
         let mut c = Cursor { bytes: raw, at: 0 };
         let count = c.varint("count", 5)?;
         let count = u32::try_from(count).map_err(|_| "count beyond u32".to_string())? as usize;
@@ -325,7 +331,7 @@ impl<'a> Layout<'a> {
         check_len("automorphisms", l.automorphisms.count, n)?;
         check_len("kekule_len", l.kekule_len.count, n)?;
         check_len("nmr_len", l.nmr_len.count, n)?;
-        check_len("floats", l.floats.len(), n * FLOATS * 4)?;
+        check_len("floats", l.floats.len(), n * floats * 4)?;
         check_codes(l.flags, l.point_group)?;
         Ok(l)
     }
@@ -333,6 +339,8 @@ impl<'a> Layout<'a> {
 
 /// Reusable decompression context and buffers: reading a chunk allocates nothing once warm.
 pub struct Scratch {
+    /// Float columns per chunk in the schema being read.
+    floats: usize,
     dctx: zstd::bulk::Decompressor<'static>,
     raw: Vec<u8>,
     pentagon_adjacencies: Vec<u32>,
@@ -350,8 +358,15 @@ impl Default for Scratch {
 }
 
 impl Scratch {
+    /// Buffers for chunks of the current schema version.
     pub fn new() -> Scratch {
+        Scratch::for_schema(super::SCHEMA_VERSION)
+    }
+
+    /// Buffers for chunks of descriptor schema `schema` (1 or 2; see [`super::SCHEMA_VERSION`]).
+    pub fn for_schema(schema: u16) -> Scratch {
         Scratch {
+            floats: if schema < 2 { FLOATS_SCHEMA_1 } else { FLOATS },
             dctx: zstd::bulk::Decompressor::new()
                 .expect("invariant: a zstd context only fails to allocate when memory is out"),
             raw: Vec::new(),
@@ -391,13 +406,14 @@ impl Scratch {
     /// Decodes a whole chunk body, checking everything (see [`decode`]).
     pub fn decode(&mut self, body: &[u8], atoms: u32) -> Result<Chunk, String> {
         self.decompress(body)?;
-        Chunk::from_layout(&Layout::parse(&self.raw)?, atoms)
+        Chunk::from_layout(&Layout::parse(&self.raw, self.floats)?, atoms, self.floats)
     }
 
     /// Decodes only the columns a scan needs; the others are length-checked and skipped.
     pub fn view(&mut self, body: &[u8], needs: Needs) -> Result<View<'_>, String> {
         self.decompress(body)?;
         let Scratch {
+            floats,
             raw,
             pentagon_adjacencies,
             automorphisms,
@@ -407,7 +423,7 @@ impl Scratch {
             nmr_start,
             ..
         } = self;
-        let l = Layout::parse(raw)?;
+        let l = Layout::parse(raw, *floats)?;
         let n = l.count;
         pentagon_adjacencies.clear();
         automorphisms.clear();
@@ -433,6 +449,7 @@ impl Scratch {
         }
         Ok(View {
             len: n,
+            float_columns: *floats,
             flags: l.flags,
             point_group: l.point_group,
             floats: l.floats,
@@ -465,6 +482,7 @@ pub struct Needs {
 /// columns not asked for in [`Needs`] panic.
 pub struct View<'a> {
     len: usize,
+    float_columns: usize,
     flags: &'a [u8],
     point_group: &'a [u8],
     floats: &'a [u8],
@@ -512,10 +530,13 @@ impl View<'_> {
         self.pentagon_adjacencies[i]
     }
 
-    /// Float column `f` (0 penalty, 1 strain, 2 HOMO, 3 LUMO, 4 gap, 5 pi energy) of record `i`,
-    /// gathered from its four byte planes.
+    /// Float column `f` (0 penalty, 1 strain, 2 HOMO, 3 LUMO, 4 gap, 5 pi energy, 6 SOMO) of
+    /// record `i`, gathered from its four byte planes; NaN for a column the schema lacks.
     #[inline]
     pub fn float(&self, f: usize, i: usize) -> f32 {
+        if f >= self.float_columns {
+            return f32::NAN;
+        }
         let n = self.len;
         let p = &self.floats[f * 4 * n..];
         f32::from_bits(u32::from_le_bytes([
@@ -537,7 +558,7 @@ impl View<'_> {
         &self.kekule[self.kekule_start[i]..self.kekule_start[i + 1]]
     }
 
-    /// The NMR pattern as flat (multiplicity, lines) pairs.
+    /// The NMR pattern as flat (intensity, lines) pairs.
     #[inline]
     pub fn nmr_pairs(&self, i: usize) -> impl Iterator<Item = (u32, u32)> + Clone + '_ {
         self.nmr[self.nmr_start[i]..self.nmr_start[i + 1]]
@@ -580,7 +601,7 @@ fn starts(name: &str, lens: &[u32], per: usize, flat: usize) -> Result<Vec<usize
 }
 
 impl Chunk {
-    fn from_layout(l: &Layout<'_>, atoms: u32) -> Result<Chunk, String> {
+    fn from_layout(l: &Layout<'_>, atoms: u32, float_columns: usize) -> Result<Chunk, String> {
         let n = l.count;
         let kekule_len = l.kekule_len.decode("kekule_len")?;
         let nmr_len = l.nmr_len.decode("nmr_len")?;
@@ -597,7 +618,7 @@ impl Chunk {
             len: n,
             kekule_start: starts("kekule", &kekule_len, 1, l.kekule.len())?,
             nmr_start: starts("nmr", &nmr_len, 2, nmr.len())?,
-            floats: unshuffle(l.floats, n),
+            floats: unshuffle(l.floats, n, float_columns),
             faces,
             face_start,
             flags: l.flags.to_vec(),
@@ -662,6 +683,11 @@ impl Chunk {
         self.floats[5][i]
     }
 
+    /// The singly occupied orbital, for odd electron counts.
+    pub fn somo(&self, i: usize) -> Option<f32> {
+        Some(self.floats[6][i]).filter(|x| !x.is_nan())
+    }
+
     pub fn automorphisms(&self, i: usize) -> u32 {
         self.automorphisms[i]
     }
@@ -670,7 +696,7 @@ impl Chunk {
         BigUint::from_bytes_le(&self.kekule[self.kekule_start[i]..self.kekule_start[i + 1]])
     }
 
-    /// The NMR pattern as flat (multiplicity, lines) pairs.
+    /// The NMR pattern as flat (intensity, lines) pairs.
     pub fn nmr_pairs(&self, i: usize) -> impl Iterator<Item = (u32, u32)> + Clone + '_ {
         self.nmr[self.nmr_start[i]..self.nmr_start[i + 1]]
             .chunks_exact(2)
@@ -695,6 +721,7 @@ impl Chunk {
             homo: f(2),
             lumo: f(3),
             gap: f(4),
+            somo: self.somo(i),
             shell: shell_from_code(self.shell_code(i)).expect("invariant: checked at decode"),
             pi_energy: f(5),
             kekule: self.kekule(i),
@@ -784,8 +811,11 @@ fn unfront(c: &FrontCoded<'_>, n: usize, atoms: u32) -> Result<Unfronted, String
     Ok((faces, start))
 }
 
-fn unshuffle(planes: &[u8], n: usize) -> [Vec<f32>; FLOATS] {
+fn unshuffle(planes: &[u8], n: usize, columns: usize) -> [Vec<f32>; FLOATS] {
     std::array::from_fn(|f| {
+        if f >= columns {
+            return vec![f32::NAN; n];
+        }
         (0..n)
             .map(|i| {
                 let b = |k: usize| planes[(f * 4 + k) * n + i];
@@ -875,6 +905,7 @@ pub(crate) mod tests {
             homo: 0.618,
             lumo: -0.1386,
             gap: 0.7566 - 0.001 * seed as f32,
+            somo: None,
             shell: Shell::ProperlyClosed,
             pi_energy: 93.16,
             kekule: BigUint::from(12500u32 + seed),

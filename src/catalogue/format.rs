@@ -1,7 +1,8 @@
 //! The data file of one (face set, atom count, IPR or complete) run: header, zstd chunks, index,
 //! trailer; see `docs/catalogue-format.md` for the byte layout. Writing is streaming and atomic
 //! (temp file, fsync, rename, fsync the directory); reading checks magic, versions and every
-//! checksum, and names the file and the part (header, index, chunk i) that is damaged.
+//! checksum, and names the file and the part (header, index, chunk i) that is damaged. A file
+//! whose header describes another run than its name says (copied or renamed by hand) is refused.
 //!
 //! This module knows nothing about units in flight, locks or queries.
 
@@ -19,11 +20,13 @@ use std::path::{Path, PathBuf};
 pub const MAGIC: [u8; 8] = *b"\x89CGRCAT\n";
 /// Last bytes of every complete data file.
 pub const END_MAGIC: [u8; 8] = *b"CGRCEND\n";
-/// Layout version of the file itself. Version 2 added `RunInfo::all_starts`; version 1 files
-/// are still read (as runs without hexagon starts).
-pub const FORMAT_VERSION: u16 = 2;
-/// Version of the record fields and their meaning; bump when a descriptor changes.
-pub const SCHEMA_VERSION: u16 = 1;
+/// Layout version of the file itself. Version 2 added `RunInfo::all_starts`, version 3
+/// `RunInfo::charge`; older files are still read (as neutral runs, version 1 also as runs
+/// without hexagon starts).
+pub const FORMAT_VERSION: u16 = 3;
+/// Version of the record fields and their meaning; bump when a descriptor changes. Schema 2
+/// added the SOMO float column and the open-doublet shell code; schema 1 files still read.
+pub const SCHEMA_VERSION: u16 = 2;
 /// Records per chunk: small enough to skip finely, large enough to compress well
 /// (common practice, no source).
 pub const CHUNK_RECORDS: usize = 4096;
@@ -206,7 +209,7 @@ impl DataFile {
             .map_err(|e| CatalogueError::io("read", path, e))?
             .len();
         let corrupt = |place, detail: String| CatalogueError::corrupt(path, place, detail);
-        let (info, header_end) = read_header(path, &mut file, len)?;
+        let (info, schema, header_end) = read_header(path, &mut file, len)?;
         let (index, index_start) = read_index(path, &mut file, len)?;
         check_layout(&index, header_end, index_start).map_err(|(p, d)| corrupt(p, d))?;
         let mut before = Vec::with_capacity(index.chunks.len());
@@ -223,6 +226,7 @@ impl DataFile {
                 format!("units account for {unit_total} records, chunks hold {n}"),
             ));
         }
+        check_name(path, &info)?;
         Ok(DataFile {
             path: path.to_path_buf(),
             file,
@@ -230,7 +234,7 @@ impl DataFile {
             index,
             before,
             body: Vec::new(),
-            scratch: Scratch::new(),
+            scratch: Scratch::for_schema(schema),
         })
     }
 
@@ -363,7 +367,30 @@ fn read_exact_at(file: &mut File, at: u64, buf: &mut [u8]) -> std::io::Result<()
     file.read_exact(buf)
 }
 
-fn read_header(path: &Path, file: &mut File, len: u64) -> Result<(RunInfo, u64), CatalogueError> {
+/// A data file must sit under the name its header gives it: names are how readers pick the file
+/// for a request (face set, size, list, charge), so a file copied or renamed by hand would
+/// otherwise answer for another run.
+fn check_name(path: &Path, info: &RunInfo) -> Result<(), CatalogueError> {
+    let want = info.file_name();
+    match path.file_name().and_then(|n| n.to_str()) {
+        Some(name) if name == want => Ok(()),
+        _ => Err(CatalogueError::RunMismatch {
+            path: path.to_path_buf(),
+            detail: format!(
+                "header holds {}, whose file is {want}; the file was renamed or copied by hand, so \
+                 rename it back or delete it",
+                info.label()
+            ),
+        }),
+    }
+}
+
+/// Header run info, descriptor schema version, and where the header ends.
+fn read_header(
+    path: &Path,
+    file: &mut File,
+    len: u64,
+) -> Result<(RunInfo, u16, u64), CatalogueError> {
     let corrupt = |detail: String| CatalogueError::corrupt(path, Place::Header, detail);
     let mut prelude = [0u8; PRELUDE];
     if len < 8 || read_exact_at(file, 0, &mut prelude[..8]).is_err() || prelude[..8] != MAGIC {
@@ -381,7 +408,7 @@ fn read_header(path: &Path, file: &mut File, len: u64) -> Result<(RunInfo, u64),
     read_exact_at(file, 0, &mut prelude).map_err(|e| corrupt(e.to_string()))?;
     let format = u16::from_le_bytes([prelude[8], prelude[9]]);
     let schema = u16::from_le_bytes([prelude[10], prelude[11]]);
-    if !(1..=FORMAT_VERSION).contains(&format) || schema != SCHEMA_VERSION {
+    if !(1..=FORMAT_VERSION).contains(&format) || !(1..=SCHEMA_VERSION).contains(&schema) {
         return Err(CatalogueError::Version {
             path: path.to_path_buf(),
             format,
@@ -403,7 +430,7 @@ fn read_header(path: &Path, file: &mut File, len: u64) -> Result<(RunInfo, u64),
     }
     let info = decode_run_info(format, &covered[PRELUDE..])
         .map_err(|e| corrupt(format!("postcard: {e}")))?;
-    Ok((info, end))
+    Ok((info, schema, end))
 }
 
 /// `RunInfo` as format version 1 wrote it (no `all_starts`).
@@ -418,21 +445,49 @@ struct RunInfoV1 {
     made_by: String,
 }
 
+/// `RunInfo` as format version 2 wrote it (no `charge`).
+#[derive(Serialize, Deserialize)]
+struct RunInfoV2 {
+    face_set: crate::cage::FaceSet,
+    atoms: u32,
+    ipr: bool,
+    unit_count: u32,
+    unit_depth: u32,
+    shard: Option<super::ShardId>,
+    made_by: String,
+    all_starts: bool,
+}
+
 /// Decodes the header's run info as written by file format `format`.
 fn decode_run_info(format: u16, bytes: &[u8]) -> Result<RunInfo, postcard::Error> {
-    if format >= 2 {
+    if format >= 3 {
         return postcard::from_bytes(bytes);
     }
-    let v1: RunInfoV1 = postcard::from_bytes(bytes)?;
+    let v2: RunInfoV2 = if format == 2 {
+        postcard::from_bytes(bytes)?
+    } else {
+        let v1: RunInfoV1 = postcard::from_bytes(bytes)?;
+        RunInfoV2 {
+            face_set: v1.face_set,
+            atoms: v1.atoms,
+            ipr: v1.ipr,
+            unit_count: v1.unit_count,
+            unit_depth: v1.unit_depth,
+            shard: v1.shard,
+            made_by: v1.made_by,
+            all_starts: false,
+        }
+    };
     Ok(RunInfo {
-        face_set: v1.face_set,
-        atoms: v1.atoms,
-        ipr: v1.ipr,
-        unit_count: v1.unit_count,
-        unit_depth: v1.unit_depth,
-        shard: v1.shard,
-        made_by: v1.made_by,
-        all_starts: false,
+        face_set: v2.face_set,
+        atoms: v2.atoms,
+        ipr: v2.ipr,
+        unit_count: v2.unit_count,
+        unit_depth: v2.unit_depth,
+        shard: v2.shard,
+        made_by: v2.made_by,
+        all_starts: v2.all_starts,
+        charge: 0,
     })
 }
 
@@ -490,9 +545,10 @@ mod tests {
     use super::*;
     use crate::cage::FaceSet;
 
-    // Files written before `all_starts` existed (format 1) still read, as pentagon-start runs.
+    // Files written before `all_starts` existed (format 1) still read, as pentagon-start runs,
+    // and files before `charge` (formats 1 and 2) as neutral runs.
     #[test]
-    fn format_1_headers_read_without_hexagon_starts() {
+    fn format_1_and_2_headers_read_as_neutral_runs() {
         let old = RunInfoV1 {
             face_set: FaceSet::Fullerene,
             atoms: 60,
@@ -505,15 +561,29 @@ mod tests {
         let bytes = postcard::to_stdvec(&old).expect("encodes");
         let info = decode_run_info(1, &bytes).expect("decodes");
         assert_eq!(
-            (info.atoms, info.unit_count, info.all_starts),
-            (60, 2000, false)
+            (info.atoms, info.unit_count, info.all_starts, info.charge),
+            (60, 2000, false, 0)
         );
-        let new = RunInfo {
+        let v2 = RunInfoV2 {
+            face_set: FaceSet::Fullerene,
+            atoms: 60,
+            ipr: false,
+            unit_count: 2000,
+            unit_depth: 9,
+            shard: None,
+            made_by: "cagerank 0.1.0".into(),
             all_starts: true,
-            ..info
         };
-        let again = decode_run_info(2, &postcard::to_stdvec(&new).expect("encodes"));
+        let v2_bytes = postcard::to_stdvec(&v2).expect("encodes");
+        let info2 = decode_run_info(2, &v2_bytes).expect("decodes");
+        assert_eq!((info2.all_starts, info2.charge), (true, 0));
+        let new = RunInfo {
+            charge: -6,
+            ..info2
+        };
+        let again = decode_run_info(3, &postcard::to_stdvec(&new).expect("encodes"));
         assert_eq!(again.expect("decodes"), new);
         assert!(decode_run_info(2, &bytes).is_err());
+        assert!(decode_run_info(3, &v2_bytes).is_err());
     }
 }

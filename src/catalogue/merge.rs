@@ -26,7 +26,7 @@ pub struct MergeReport {
 /// Merges the data files of the catalogue directories `inputs` into catalogue `into`.
 pub fn merge(inputs: &[PathBuf], into: &Path) -> Result<MergeReport, CatalogueError> {
     let groups = group_inputs(inputs)?;
-    fs::create_dir_all(into).map_err(|e| CatalogueError::io("create", into, e))?;
+    fs::create_dir_all(into).map_err(|e| super::lock::write_error(into, into, e))?;
     let _lock = Lock::acquire(into)?;
     let mut report = MergeReport {
         written: Vec::new(),
@@ -56,6 +56,7 @@ pub fn merge(inputs: &[PathBuf], into: &Path) -> Result<MergeReport, CatalogueEr
 /// Opens every data file of every input directory, grouped by file name.
 fn group_inputs(inputs: &[PathBuf]) -> Result<BTreeMap<String, Vec<DataFile>>, CatalogueError> {
     let mut groups: BTreeMap<String, Vec<DataFile>> = BTreeMap::new();
+    let mut charges: BTreeMap<String, (i32, PathBuf)> = BTreeMap::new();
     for dir in inputs {
         let files = data_files(dir)?;
         if files.is_empty() {
@@ -66,10 +67,44 @@ fn group_inputs(inputs: &[PathBuf]) -> Result<BTreeMap<String, Vec<DataFile>>, C
         }
         for path in files {
             let file = DataFile::open(&path)?;
+            if file.info.shard.is_some() {
+                check_one_charge(&mut charges, &file)?;
+            }
             groups.entry(file.info.file_name()).or_default().push(file);
         }
     }
     Ok(groups)
+}
+
+/// Shards of one size and list must share a charge: records computed for different cage ions
+/// cannot form one run (their descriptors differ), so such a mix is refused by name.
+fn check_one_charge(
+    seen: &mut BTreeMap<String, (i32, PathBuf)>,
+    file: &DataFile,
+) -> Result<(), CatalogueError> {
+    let run = RunInfo {
+        charge: 0,
+        ..file.info.whole()
+    }
+    .file_name();
+    match seen.get(&run) {
+        Some((charge, other)) if *charge != file.info.charge => {
+            Err(CatalogueError::Merge(format!(
+                "{} (charge {:+}) and {} (charge {:+}) are shards of {} for different charges; \
+             merge the shards of one charge at a time",
+                other.display(),
+                charge,
+                file.path().display(),
+                file.info.charge,
+                file.info.label()
+            )))
+        }
+        Some(_) => Ok(()),
+        None => {
+            seen.insert(run, (file.info.charge, file.path().to_path_buf()));
+            Ok(())
+        }
+    }
 }
 
 /// Checks that the files of one group form exactly one run; returns the merged run's info.

@@ -87,6 +87,9 @@ pub struct RunInfo {
     /// True if spirals were also started on hexagons (`--all-starts`): the unit list differs,
     /// and such a list holds the cages with no spiral starting on a pentagon.
     pub all_starts: bool,
+    /// Cage charge Q the Hückel descriptors were computed for (format 3 on; older files are
+    /// neutral runs). Part of the file name, so runs of several charges share a directory.
+    pub charge: i32,
 }
 
 impl RunInfo {
@@ -98,13 +101,15 @@ impl RunInfo {
         }
     }
 
-    /// File name of this run's data file, e.g. `fullerene-c100-ipr.cgr`.
+    /// File name of this run's data file, e.g. `fullerene-c100-ipr.cgr` or
+    /// `fullerene-c80-ipr-q-6.cgr`.
     pub fn file_name(&self) -> String {
-        data_file_name(self.face_set, self.atoms, self.ipr)
+        data_file_name(self.face_set, self.atoms, self.ipr, self.charge)
     }
 
-    /// Human name, e.g. "C100 (IPR, fullerene)". A run that started spirals only on pentagons
-    /// where that is not known to find every cage says so, as its list may be short.
+    /// Human name, e.g. "C100 (IPR, fullerene)" or "C80 (IPR, fullerene, charge -6)". A run that
+    /// started spirals only on pentagons where that is not known to find every cage says so, as
+    /// its list may be short.
     pub fn label(&self) -> String {
         let list = if self.ipr { "IPR" } else { "all" };
         let spec = crate::enumerate::Spec {
@@ -120,18 +125,42 @@ impl RunInfo {
         } else {
             ""
         };
-        format!("C{} ({list}, {}{starts})", self.atoms, self.face_set)
+        let charge = if self.charge == 0 {
+            String::new()
+        } else {
+            format!(", charge {:+}", self.charge)
+        };
+        format!(
+            "C{} ({list}, {}{charge}{starts})",
+            self.atoms, self.face_set
+        )
     }
 }
 
-pub fn data_file_name(face_set: FaceSet, atoms: u32, ipr: bool) -> String {
+/// The data file of a run: `<face set>-c<atoms>-<all|ipr>.cgr` for a neutral cage, with
+/// `-q<signed charge>` before the extension for a cage ion (`fullerene-c80-ipr-q-6.cgr`), so the
+/// runs of several charges of one size sit side by side.
+pub fn data_file_name(face_set: FaceSet, atoms: u32, ipr: bool, charge: i32) -> String {
     let list = if ipr { "ipr" } else { "all" };
-    format!("{}-c{atoms}-{list}.{DATA_EXT}", face_set.name())
+    let charge = if charge == 0 {
+        String::new()
+    } else {
+        format!("-q{charge:+}")
+    };
+    format!("{}-c{atoms}-{list}{charge}.{DATA_EXT}", face_set.name())
 }
 
 /// The data files in a catalogue directory, sorted by name.
 pub fn data_files(dir: &Path) -> Result<Vec<PathBuf>, CatalogueError> {
-    let entries = std::fs::read_dir(dir).map_err(|e| CatalogueError::io("list", dir, e))?;
+    let entries = std::fs::read_dir(dir).map_err(|e| {
+        if e.kind() == io::ErrorKind::NotFound {
+            CatalogueError::NoDirectory {
+                dir: dir.to_path_buf(),
+            }
+        } else {
+            CatalogueError::io("list", dir, e)
+        }
+    })?;
     let mut out = Vec::new();
     for entry in entries {
         let path = entry
@@ -192,12 +221,18 @@ pub enum CatalogueError {
     },
     /// Another writer holds the catalogue.
     Locked { dir: PathBuf, holder: String },
+    /// The catalogue directory cannot be written to.
+    ReadOnly { dir: PathBuf },
+    /// The catalogue directory does not exist.
+    NoDirectory { dir: PathBuf },
     /// Existing files belong to a different run than the one requested.
     RunMismatch { path: PathBuf, detail: String },
     /// Shards that cannot be merged.
     Merge(String),
     /// The catalogue has nothing for what was asked.
     Missing { dir: PathBuf, what: String },
+    /// The request itself cannot be answered by any catalogue (e.g. an impossible size).
+    Request(String),
     /// A record handed to the writer is unfit to store.
     BadRecord { unit: u32, detail: String },
     /// `finish` was called before every unit was committed.
@@ -221,7 +256,7 @@ impl CatalogueError {
         }
     }
 
-    /// True for errors that mean damaged or unreadable data (the CLI exits with code 2).
+    /// True for errors that mean damaged or unreadable data.
     pub fn is_data_error(&self) -> bool {
         matches!(
             self,
@@ -229,6 +264,22 @@ impl CatalogueError {
                 | CatalogueError::Foreign { .. }
                 | CatalogueError::Version { .. }
         )
+    }
+
+    /// True for errors the user fixes by changing the request or the files (the CLI exits with
+    /// code 2): damaged, foreign, misnamed or mismatched files, missing data, shards that do
+    /// not merge, a read-only directory. Locks, I/O failures and internal errors are not.
+    pub fn is_user_error(&self) -> bool {
+        self.is_data_error()
+            || matches!(
+                self,
+                CatalogueError::RunMismatch { .. }
+                    | CatalogueError::Merge(_)
+                    | CatalogueError::Missing { .. }
+                    | CatalogueError::Request(_)
+                    | CatalogueError::ReadOnly { .. }
+                    | CatalogueError::NoDirectory { .. }
+            )
     }
 }
 
@@ -256,10 +307,13 @@ impl fmt::Display for CatalogueError {
             ),
             CatalogueError::Locked { dir, holder } => write!(
                 f,
-                "catalogue {} is being written by {holder}; wait for it, or delete {}/{} if that process is gone",
+                "catalogue {} is being written by {holder}; wait for it to finish, or use another catalogue directory",
                 dir.display(),
-                dir.display(),
-                lock::LOCK_FILE
+            ),
+            CatalogueError::ReadOnly { dir } => write!(
+                f,
+                "catalogue {} is read-only (no write permission); choose a writable directory with --catalogue DIR",
+                dir.display()
             ),
             CatalogueError::RunMismatch { path, detail } => {
                 write!(f, "{}: {detail}", path.display())
@@ -268,6 +322,13 @@ impl fmt::Display for CatalogueError {
             CatalogueError::Missing { dir, what } => {
                 write!(f, "catalogue {} has no {what}", dir.display())
             }
+            CatalogueError::Request(msg) => f.write_str(msg),
+            CatalogueError::NoDirectory { dir } => write!(
+                f,
+                "catalogue directory {} does not exist; give an existing one with --catalogue DIR \
+                 (or set CAGERANK_CATALOGUE), or build one with `cagerank enumerate SIZES --catalogue DIR`",
+                dir.display()
+            ),
             CatalogueError::BadRecord { unit, detail } => {
                 write!(f, "unit {unit}: record cannot be stored ({detail})")
             }

@@ -9,12 +9,13 @@
 
 use super::chunk::{ChunkStats, Needs, View};
 use super::format::DataFile;
-use super::record::{normalise_nmr, shell_code, shell_from_code, PointGroup, Record};
+use super::record::{shell_code, shell_from_code, PointGroup, Record};
 use super::{data_file_name, CatalogueError};
 use crate::cage::FaceSet;
 pub use crate::score::rank::RankKey;
 use crate::score::rank::{self, default_keys, RankField, RankFields};
-use crate::score::Shell;
+use crate::score::{nmr, Shell};
+use crate::spiral::{check_fullerene_atoms, SpiralError};
 use std::cmp::Ordering;
 use std::collections::BinaryHeap;
 use std::path::Path;
@@ -26,8 +27,13 @@ pub struct Filter {
     pub min_gap: Option<f32>,
     pub shell: Option<Shell>,
     pub point_group: Option<PointGroup>,
-    /// 13C NMR pattern in normal form (see [`normalise_nmr`]).
+    /// 13C NMR pattern in normal form (see [`nmr::normalise`]): the record's must equal it.
     pub nmr: Option<Vec<(u32, u32)>>,
+    /// Number of 13C NMR lines the record's pattern must have.
+    pub nmr_lines: Option<u64>,
+    /// A measured 13C NMR pattern whose lines may be merged (accidentally coincident): the
+    /// record matches if its lines group into these (see [`nmr::merges_into`]).
+    pub nmr_merged: Option<Vec<(u32, u32)>>,
     pub chiral: Option<bool>,
     /// Keep IPR cages only (used when an IPR query is answered from the complete list).
     pub ipr_only: bool,
@@ -40,6 +46,8 @@ pub struct Query {
     pub face_set: FaceSet,
     /// IPR isomers only (answered from the IPR file, or from the complete list if that is all there is).
     pub ipr: bool,
+    /// Cage charge of the run to read (0 for the neutral cage; see [`super::RunInfo::charge`]).
+    pub charge: i32,
     pub filter: Filter,
     /// Sort keys (the scorer's `--rank-by` keys); empty means [`default_keys`].
     pub rank_by: Vec<RankKey>,
@@ -201,7 +209,7 @@ fn needs(filter: &Filter, keys: &[RankKey]) -> Needs {
             || uses(RankField::PentagonAdjacencies),
         automorphisms: uses(RankField::Automorphisms),
         kekule: uses(RankField::Kekule),
-        nmr: filter.nmr.is_some(),
+        nmr: filter.nmr.is_some() || filter.nmr_lines.is_some() || filter.nmr_merged.is_some(),
     }
 }
 
@@ -238,11 +246,17 @@ impl Filter {
             && self.chiral.is_none_or(|ch| c.chiral(i) == ch)
             && (!self.ipr_only || c.ipr(i))
             && self.nmr.as_ref().is_none_or(|want| nmr_matches(c, i, want))
+            && self
+                .nmr_lines
+                .is_none_or(|want| c.nmr_pairs(i).map(|(_, n)| u64::from(n)).sum::<u64>() == want)
+            && self.nmr_merged.as_ref().is_none_or(|measured| {
+                nmr::merges_into(&c.nmr_pairs(i).collect::<Vec<_>>(), measured)
+            })
     }
 }
 
 /// Whether record `i`'s NMR pattern has the normal form `want`. Stored patterns are normally
-/// already in normal form (strictly decreasing multiplicities, no zero counts), and then a
+/// already in normal form (strictly decreasing intensities, no zero counts), and then a
 /// direct comparison decides without allocating.
 fn nmr_matches(c: &View<'_>, i: usize, want: &[(u32, u32)]) -> bool {
     let pairs = c.nmr_pairs(i);
@@ -255,14 +269,28 @@ fn nmr_matches(c: &View<'_>, i: usize, want: &[(u32, u32)]) -> bool {
     if normal {
         pairs.eq(want.iter().copied())
     } else {
-        normalise_nmr(&pairs.collect::<Vec<_>>()) == want
+        nmr::normalise(&pairs.collect::<Vec<_>>()) == want
     }
 }
 
 /// Picks the data file answering `q`, and whether IPR must be filtered from the complete list.
 fn choose_file(dir: &Path, q: &Query) -> Result<(DataFile, bool), CatalogueError> {
-    let ipr_path = dir.join(data_file_name(q.face_set, q.atoms, true));
-    let all_path = dir.join(data_file_name(q.face_set, q.atoms, false));
+    if q.face_set == FaceSet::Fullerene {
+        if let Err(e) = check_fullerene_atoms(u64::from(q.atoms)) {
+            let reason = match e {
+                SpiralError::BadAtoms { reason, .. } => reason,
+                other => other.to_string(),
+            };
+            return Err(CatalogueError::Request(format!(
+                "no catalogue holds C{} fullerenes ({reason}); ask for 20 atoms or an even number \
+                 from 24 on, e.g. --atoms {}",
+                q.atoms,
+                nearest_fullerene_size(q.atoms)
+            )));
+        }
+    }
+    let ipr_path = dir.join(data_file_name(q.face_set, q.atoms, true, q.charge));
+    let all_path = dir.join(data_file_name(q.face_set, q.atoms, false, q.charge));
     let (path, ipr_only) = if q.ipr && ipr_path.exists() {
         (ipr_path, false)
     } else if all_path.exists() {
@@ -270,10 +298,18 @@ fn choose_file(dir: &Path, q: &Query) -> Result<(DataFile, bool), CatalogueError
     } else {
         let list = if q.ipr { "IPR or complete" } else { "complete" };
         let flag = if q.ipr { " --ipr" } else { "" };
+        let (charge_text, charge_flag) = if q.charge == 0 {
+            (String::new(), String::new())
+        } else {
+            (
+                format!(", charge {:+}", q.charge),
+                format!(" --charge {}", q.charge),
+            )
+        };
         return Err(CatalogueError::Missing {
             dir: dir.to_path_buf(),
             what: format!(
-                "{list} list of C{} ({}); build it with `cagerank enumerate {}{flag} --catalogue {}`",
+                "{list} list of C{} ({}{charge_text}); build it with `cagerank enumerate {}{flag}{charge_flag} --catalogue {}`",
                 q.atoms,
                 q.face_set,
                 q.atoms,
@@ -292,6 +328,15 @@ fn choose_file(dir: &Path, q: &Query) -> Result<(DataFile, bool), CatalogueError
         });
     }
     Ok((file, ipr_only))
+}
+
+/// The fullerene size closest to `atoms` (the even size below an odd one), for suggestions.
+fn nearest_fullerene_size(atoms: u32) -> u32 {
+    match atoms {
+        0..=21 => 20,
+        22 => 24,
+        n => n.min(100_000) - n.min(100_000) % 2,
+    }
 }
 
 /// Runs a query: matching records, best first, numbered, at most `top`.

@@ -6,7 +6,7 @@
 
 use crate::cage::FaceSet;
 use crate::score::symmetry::PointGroup as Symmetry;
-use crate::score::{Descriptors, Scored, Shell};
+use crate::score::{nmr, Descriptors, Scored, Shell};
 use crate::spiral::{Spiral, SpiralError, WindError};
 use num_bigint::BigUint;
 
@@ -46,12 +46,14 @@ impl PointGroup {
     }
 }
 
-/// Shell types in code order (the code on disk is the index).
-pub const SHELLS: [Shell; 4] = [
+/// Shell types in code order (the code on disk is the index). Append only: the open-shell
+/// doublet (schema 2) came last, although it ranks before `Open`.
+pub const SHELLS: [Shell; 5] = [
     Shell::ProperlyClosed,
     Shell::PseudoClosed,
     Shell::MetaClosed,
     Shell::Open,
+    Shell::OpenDoublet,
 ];
 
 pub fn shell_code(shell: Shell) -> u8 {
@@ -65,7 +67,8 @@ pub fn shell_from_code(code: u8) -> Option<Shell> {
     SHELLS.get(code as usize).copied()
 }
 
-/// Looks a shell type up by its name ("properly-closed", "pseudo-closed", "meta-closed", "open").
+/// Looks a shell type up by its name ("properly-closed", "pseudo-closed", "meta-closed",
+/// "open-doublet", "open").
 pub fn shell_from_name(name: &str) -> Option<Shell> {
     SHELLS
         .iter()
@@ -92,17 +95,21 @@ pub struct Record {
     /// How many hexagons have k hexagon neighbours, k = 0..=6.
     pub hexagon_neighbours: [u32; 7],
     pub hexagon_strain: f32,
-    /// Hückel HOMO, LUMO and gap in units of |beta|.
+    /// Hückel HOMO (highest doubly occupied), LUMO and gap in units of |beta|; the gap is
+    /// SOMO - LUMO when the electron count is odd.
     pub homo: f32,
     pub lumo: f32,
     pub gap: f32,
+    /// Singly occupied orbital, present exactly for odd electron counts (schema 2 on).
+    pub somo: Option<f32>,
     pub shell: Shell,
     pub pi_energy: f32,
     pub kekule: BigUint,
     pub automorphisms: u32,
     pub point_group: PointGroup,
     pub chiral: bool,
-    /// 13C NMR pattern: (multiplicity, number of lines), in decreasing multiplicity.
+    /// 13C NMR pattern: (intensity, number of lines), largest intensity first (the normal form
+    /// of [`nmr::normalise`]; printed as LINESxINTENSITY by [`nmr::format_pattern`]).
     pub nmr: Vec<(u32, u32)>,
 }
 
@@ -164,8 +171,8 @@ impl Record {
     }
 
     /// Total number of NMR lines.
-    pub fn nmr_lines(&self) -> u32 {
-        self.nmr.iter().map(|&(_, n)| n).sum()
+    pub fn nmr_lines(&self) -> u64 {
+        nmr::line_count(&self.nmr)
     }
 }
 
@@ -193,13 +200,14 @@ impl Record {
             homo: d.homo as f32,
             lumo: d.lumo as f32,
             gap: d.gap as f32,
+            somo: d.somo.map(|x| x as f32),
             shell: d.shell,
             pi_energy: d.pi_energy as f32,
             kekule,
             automorphisms: d.automorphisms,
             point_group,
             chiral: d.chiral,
-            nmr: normalise_nmr(&d.nmr),
+            nmr: nmr::normalise(&d.nmr),
         })
     }
 
@@ -213,6 +221,7 @@ impl Record {
             homo: self.homo as f64,
             lumo: self.lumo as f64,
             gap: self.gap as f64,
+            somo: self.somo.map(f64::from),
             shell: self.shell,
             pi_energy: self.pi_energy as f64,
             kekule: self.kekule.to_string(),
@@ -250,41 +259,6 @@ impl Record {
             rank: None,
         }
     }
-}
-
-/// Brings an NMR pattern to the stored form: merged by multiplicity, decreasing multiplicity,
-/// no zero counts. Two patterns describe the same spectrum iff their normal forms are equal.
-pub fn normalise_nmr(pattern: &[(u32, u32)]) -> Vec<(u32, u32)> {
-    let mut out: Vec<(u32, u32)> = Vec::new();
-    let mut sorted: Vec<(u32, u32)> = pattern.iter().copied().filter(|&(_, n)| n > 0).collect();
-    sorted.sort_by_key(|b| std::cmp::Reverse(b.0));
-    for (m, n) in sorted {
-        match out.last_mut() {
-            Some(last) if last.0 == m => last.1 += n,
-            _ => out.push((m, n)),
-        }
-    }
-    out
-}
-
-/// Parses "8x10,4x1" (multiplicity x number of lines, comma separated) into normal form.
-pub fn parse_nmr(text: &str) -> Result<Vec<(u32, u32)>, String> {
-    let mut pairs = Vec::new();
-    for part in text.split(',').map(str::trim).filter(|p| !p.is_empty()) {
-        let (m, n) = part
-            .split_once(['x', 'X'])
-            .ok_or_else(|| format!("NMR term '{part}' is not MULTIPLICITYxLINES, e.g. 8x10"))?;
-        let parse = |s: &str| {
-            s.trim()
-                .parse::<u32>()
-                .map_err(|_| format!("NMR term '{part}': '{s}' is not a whole number"))
-        };
-        pairs.push((parse(m)?, parse(n)?));
-    }
-    if pairs.is_empty() {
-        return Err("empty NMR pattern; write e.g. 8x10,4x1".to_string());
-    }
-    Ok(normalise_nmr(&pairs))
 }
 
 #[cfg(test)]
@@ -326,16 +300,6 @@ mod tests {
         assert_eq!(back.point_group, d.point_group);
         assert_eq!(back.gap as f32, d.gap as f32);
         assert_eq!(r.to_scored().spiral_numbers, s.pentagon_indices());
-    }
-
-    #[test]
-    fn nmr_patterns_normalise() {
-        // C70-D5h: 5 lines, 10:10:20:20:10 (Taylor et al., Chem. Commun. 1990, 1423, memory)
-        // written two ways must match.
-        assert_eq!(parse_nmr("10x3,20x2"), Ok(vec![(20, 2), (10, 3)]));
-        assert_eq!(parse_nmr("20x1,10x3,20x1"), Ok(vec![(20, 2), (10, 3)]));
-        assert!(parse_nmr("8y10").is_err());
-        assert!(parse_nmr("").is_err());
     }
 
     #[test]

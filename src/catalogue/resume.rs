@@ -3,6 +3,9 @@
 //! the committed units in unit order and the work directory removed. Because the data file is a
 //! pure function of the unit results, a run killed at any moment and started again yields the
 //! same bytes as an uninterrupted one. No finished unit is lost; units in flight are redone.
+//! Every committed-units file carries the run it belongs to, so one copied in from another run
+//! (another size, list, charge or shard) is refused instead of merged in. How often to commit
+//! is the caller's choice (the CLI commits every few seconds).
 
 use super::chunk;
 use super::crc::crc32;
@@ -14,7 +17,9 @@ use std::collections::{BTreeMap, BTreeSet};
 use std::fs;
 use std::path::{Path, PathBuf};
 
-const PART_MAGIC: [u8; 8] = *b"\x89CGRUNT\n";
+/// Committed-units files since format 3: they name their run. (`\x89CGRUNT\n` files, without
+/// it, belonged to work directories that format 3 no longer resumes.)
+const PART_MAGIC: [u8; 8] = *b"\x89CGRPRT\n";
 const RUN_MAGIC: [u8; 8] = *b"\x89CGRRUN\n";
 
 /// The program name and version recorded as provenance in every file.
@@ -59,7 +64,7 @@ impl Writer {
     /// finds which units are still to do. Refuses if the directory holds a different run for the
     /// same data file, finished or unfinished.
     pub fn open(dir: &Path, info: RunInfo) -> Result<Writer, CatalogueError> {
-        fs::create_dir_all(dir).map_err(|e| CatalogueError::io("create", dir, e))?;
+        fs::create_dir_all(dir).map_err(|e| super::lock::write_error(dir, dir, e))?;
         let lock = Lock::acquire(dir)?;
         let dest = dir.join(info.file_name());
         let work = dir.join(format!("{}.work", info.file_name()));
@@ -69,7 +74,7 @@ impl Writer {
             BTreeSet::new()
         } else {
             prepare_work_dir(&work, &info)?;
-            let done = committed_parts(&work, info.atoms)?;
+            let done = committed_parts(&work, &info)?;
             units_of(&info).filter(|u| !done.contains_key(u)).collect()
         };
         Ok(Writer {
@@ -118,7 +123,10 @@ impl Writer {
             }
             validate(&self.info, unit, records)?;
         }
-        write_atomic(&part_path(&self.work, first), &part_bytes(batch))?;
+        write_atomic(
+            &part_path(&self.work, first),
+            &part_bytes(&self.info, batch),
+        )?;
         for (unit, _) in batch {
             self.pending.remove(unit);
         }
@@ -142,14 +150,14 @@ impl Writer {
                 pending: self.pending.len(),
             });
         }
-        let parts = committed_parts(&self.work, self.info.atoms)?;
+        let parts = committed_parts(&self.work, &self.info)?;
         let mut out = DataWriter::create(&self.dest, &self.info)?;
         let mut cache: (Option<PathBuf>, BTreeMap<u32, Vec<Record>>) = (None, BTreeMap::new());
         let mut total = 0u64;
         for unit in units_of(&self.info) {
             let part = parts.get(&unit).expect("invariant: no unit pending");
             if cache.0.as_ref() != Some(part) {
-                cache = (Some(part.clone()), read_part(part, self.info.atoms)?);
+                cache = (Some(part.clone()), read_part(part, &self.info)?);
             }
             let records = cache.1.remove(&unit).unwrap_or_default();
             total += records.len() as u64;
@@ -213,6 +221,16 @@ pub fn describe(info: &RunInfo) -> String {
     )
 }
 
+/// The run settings of a work directory's `run` file, if it is one this version wrote.
+pub fn read_run_file(bytes: &[u8]) -> Option<RunInfo> {
+    let body = bytes.strip_prefix(&RUN_MAGIC)?;
+    let (crc, body) = body.split_at_checked(4)?;
+    if crc32(body).to_le_bytes() != crc {
+        return None;
+    }
+    postcard::from_bytes(body).ok()
+}
+
 fn run_file_bytes(info: &RunInfo) -> Vec<u8> {
     let body = postcard::to_stdvec(info).expect("invariant: run info serializes");
     let mut out = RUN_MAGIC.to_vec();
@@ -226,11 +244,15 @@ fn prepare_work_dir(work: &Path, info: &RunInfo) -> Result<(), CatalogueError> {
     if run.exists() {
         let bytes = fs::read(&run).map_err(|e| CatalogueError::io("read", &run, e))?;
         if bytes != run_file_bytes(info) {
+            let theirs = read_run_file(&bytes).map_or_else(
+                || "unreadable or from another version".to_string(),
+                |other| describe(&other),
+            );
             return Err(CatalogueError::RunMismatch {
                 path: work.to_path_buf(),
                 detail: format!(
-                    "holds an unfinished run with other settings than requested ({}); \
-                     finish that run or delete this directory",
+                    "holds an unfinished run with other settings ({theirs}) than requested ({}); \
+                     finish that run with its own command or delete this directory",
                     describe(info)
                 ),
             });
@@ -268,8 +290,9 @@ fn part_path(work: &Path, first_unit: u32) -> PathBuf {
 
 /// Which committed part file holds each unit. A part file is only ever visible complete
 /// (atomic rename); one that fails its checksum anyway (disk damage) is removed, so its units
-/// are redone rather than trusted.
-fn committed_parts(work: &Path, atoms: u32) -> Result<BTreeMap<u32, PathBuf>, CatalogueError> {
+/// are redone rather than trusted. One that is intact but belongs to another run, or holds a
+/// unit twice, is refused: it was copied in by hand, and deleting it could lose someone's work.
+fn committed_parts(work: &Path, info: &RunInfo) -> Result<BTreeMap<u32, PathBuf>, CatalogueError> {
     let mut map = BTreeMap::new();
     let mut names = Vec::new();
     for entry in fs::read_dir(work).map_err(|e| CatalogueError::io("list", work, e))? {
@@ -282,14 +305,75 @@ fn committed_parts(work: &Path, atoms: u32) -> Result<BTreeMap<u32, PathBuf>, Ca
     }
     names.sort();
     for path in names {
-        match read_part(&path, atoms) {
-            Ok(units) => map.extend(units.into_keys().map(|u| (u, path.clone()))),
+        match read_part(&path, info) {
+            Ok(units) => {
+                for unit in units.into_keys() {
+                    if let Some(other) = map.insert(unit, path.clone()) {
+                        return Err(CatalogueError::RunMismatch {
+                            path: path.clone(),
+                            detail: format!(
+                                "holds unit {unit}, which {} holds too; one of them was copied in \
+                                 by hand, so delete it",
+                                other.display()
+                            ),
+                        });
+                    }
+                }
+            }
+            Err(e @ CatalogueError::RunMismatch { .. }) => return Err(e),
             Err(_) => {
                 fs::remove_file(&path).map_err(|e| CatalogueError::io("remove", &path, e))?;
             }
         }
     }
     Ok(map)
+}
+
+/// Checks the committed-units files of the work directory `work` against the run in its `run`
+/// file without changing anything (for `verify`): the run settings, and a list of problems.
+pub fn check_work_dir(work: &Path) -> Result<(RunInfo, Vec<CatalogueError>), CatalogueError> {
+    let run = work.join("run");
+    let bytes = fs::read(&run).map_err(|e| CatalogueError::io("read", &run, e))?;
+    let info = read_run_file(&bytes).ok_or_else(|| {
+        CatalogueError::corrupt(
+            &run,
+            Place::Part,
+            "not a run file of this version; delete the work directory and run again".into(),
+        )
+    })?;
+    let mut problems = Vec::new();
+    let name = work.file_name().and_then(|n| n.to_str()).unwrap_or("");
+    if name != format!("{}.work", info.file_name()) {
+        problems.push(CatalogueError::RunMismatch {
+            path: work.to_path_buf(),
+            detail: format!(
+                "holds a run of {}, whose work directory is {}.work; it was renamed by hand",
+                info.label(),
+                info.file_name()
+            ),
+        });
+    }
+    let mut seen = BTreeSet::new();
+    for entry in fs::read_dir(work).map_err(|e| CatalogueError::io("list", work, e))? {
+        let path = entry
+            .map_err(|e| CatalogueError::io("list", work, e))?
+            .path();
+        if path.extension().is_none_or(|e| e != "part") {
+            continue;
+        }
+        match read_part(&path, &info) {
+            Ok(units) => {
+                if let Some(u) = units.keys().find(|&&u| !seen.insert(u)) {
+                    problems.push(CatalogueError::RunMismatch {
+                        path,
+                        detail: format!("holds unit {u}, which another committed file holds too"),
+                    });
+                }
+            }
+            Err(e) => problems.push(e),
+        }
+    }
+    Ok((info, problems))
 }
 
 /// Records must be storable: right atom count, special faces increasing within the spiral.
@@ -318,24 +402,30 @@ fn validate(info: &RunInfo, unit: u32, records: &[Record]) -> Result<(), Catalog
     Ok(())
 }
 
-/// Part file: magic, unit list (unit, record count), CRC of the body, zstd chunk body holding
-/// the batch's records in batch order.
-fn part_bytes(batch: &[(u32, &[Record])]) -> Vec<u8> {
+/// Part file: magic, u32 length R and postcard `RunInfo` of the run (R bytes), u32 length L
+/// and the unit list (unit, record count; L bytes), CRC-32 of run info, list and body, then
+/// the zstd chunk body holding the batch's records in batch order.
+fn part_bytes(info: &RunInfo, batch: &[(u32, &[Record])]) -> Vec<u8> {
     let all: Vec<Record> = batch.iter().flat_map(|(_, r)| r.iter().cloned()).collect();
     let units: Vec<(u32, u64)> = batch.iter().map(|(u, r)| (*u, r.len() as u64)).collect();
+    let run = postcard::to_stdvec(info).expect("invariant: run info serializes");
     let list = postcard::to_stdvec(&units).expect("invariant: unit list serializes");
     let body = chunk::encode(&all);
     let mut out = PART_MAGIC.to_vec();
+    out.extend_from_slice(&(run.len() as u32).to_le_bytes());
+    out.extend_from_slice(&run);
     out.extend_from_slice(&(list.len() as u32).to_le_bytes());
     out.extend_from_slice(&list);
-    let crc = crc32(&[&list[..], &body[..]].concat());
+    let crc = crc32(&[&run[..], &list[..], &body[..]].concat());
     out.extend_from_slice(&crc.to_le_bytes());
     out.extend_from_slice(&body);
     out
 }
 
-/// Reads a part file back into its units' records.
-fn read_part(path: &Path, atoms: u32) -> Result<BTreeMap<u32, Vec<Record>>, CatalogueError> {
+/// Reads a part file of the run `info` back into its units' records. Damage (checksum,
+/// lengths) is `Corrupt`; an intact file of another run, or naming units outside the run or
+/// shard, is `RunMismatch`.
+fn read_part(path: &Path, info: &RunInfo) -> Result<BTreeMap<u32, Vec<Record>>, CatalogueError> {
     let bytes = fs::read(path).map_err(|e| CatalogueError::io("read", path, e))?;
     let corrupt = |d: String| {
         CatalogueError::corrupt(
@@ -344,24 +434,50 @@ fn read_part(path: &Path, atoms: u32) -> Result<BTreeMap<u32, Vec<Record>>, Cata
             format!("{d}; delete this file and run the same command again to redo its units"),
         )
     };
-    let u32_at = |at: usize| {
-        bytes
-            .get(at..at + 4)
-            .map(|b| u32::from_le_bytes(b.try_into().expect("invariant: 4 bytes")))
-    };
     if bytes.len() < 12 || bytes[..8] != PART_MAGIC {
-        return Err(corrupt("not a committed-units file".into()));
+        return Err(corrupt("not a committed-units file of this version".into()));
     }
-    let list_len = u32_at(8).expect("invariant: length checked") as usize;
-    let crc_at = 12usize.saturating_add(list_len);
-    let crc = u32_at(crc_at).ok_or_else(|| corrupt("truncated".into()))?;
-    let list = &bytes[12..crc_at];
-    let body = &bytes[crc_at + 4..];
-    if crc32(&[list, body].concat()) != crc {
+    let mut at = 8usize;
+    let field = |at: &mut usize| -> Option<&[u8]> {
+        let len = u32::from_le_bytes(bytes.get(*at..*at + 4)?.try_into().ok()?) as usize;
+        let start = *at + 4;
+        let slice = bytes.get(start..start.checked_add(len)?)?;
+        *at = start + len;
+        Some(slice)
+    };
+    let run = field(&mut at).ok_or_else(|| corrupt("truncated".into()))?;
+    let list = field(&mut at).ok_or_else(|| corrupt("truncated".into()))?;
+    let crc = bytes
+        .get(at..at + 4)
+        .map(|b| u32::from_le_bytes(b.try_into().expect("invariant: 4 bytes")))
+        .ok_or_else(|| corrupt("truncated".into()))?;
+    let body = &bytes[at + 4..];
+    if crc32(&[run, list, body].concat()) != crc {
         return Err(corrupt("checksum mismatch".into()));
     }
+    let theirs: RunInfo = postcard::from_bytes(run).map_err(|e| corrupt(e.to_string()))?;
+    if theirs != *info {
+        return Err(CatalogueError::RunMismatch {
+            path: path.to_path_buf(),
+            detail: format!(
+                "holds units of another run ({}) than this work directory's ({}); it was copied \
+                 in by hand, so delete it",
+                describe(&theirs),
+                describe(info)
+            ),
+        });
+    }
     let units: Vec<(u32, u64)> = postcard::from_bytes(list).map_err(|e| corrupt(e.to_string()))?;
-    let chunk = chunk::decode(body, atoms).map_err(corrupt)?;
+    if let Some(&(u, _)) = units
+        .iter()
+        .find(|&&(u, _)| u >= info.unit_count || info.shard.is_some_and(|s| !s.owns(u)))
+    {
+        return Err(CatalogueError::RunMismatch {
+            path: path.to_path_buf(),
+            detail: format!("holds unit {u}, which is not a unit of this run or shard; delete it"),
+        });
+    }
+    let chunk = chunk::decode(body, info.atoms).map_err(corrupt)?;
     let expected: u64 = units.iter().map(|u| u.1).sum();
     if chunk.len() as u64 != expected {
         return Err(corrupt(format!(

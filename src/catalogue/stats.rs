@@ -63,9 +63,26 @@ pub struct FileStats {
     pub strain: Histogram,
 }
 
-/// Statistics of every data file in a catalogue, in file-name order.
+/// Statistics of every data file in a catalogue, ordered by face set, then numerically by
+/// size (C20 before C100), then complete list before IPR, then charge, then shard.
 pub fn catalogue_stats(dir: &Path) -> Result<Vec<FileStats>, CatalogueError> {
-    data_files(dir)?.iter().map(|p| file_stats(p)).collect()
+    let mut all = data_files(dir)?
+        .iter()
+        .map(|p| file_stats(p))
+        .collect::<Result<Vec<_>, _>>()?;
+    all.sort_by_key(|s| order_key(&s.info));
+    Ok(all)
+}
+
+/// The order of [`catalogue_stats`].
+fn order_key(info: &RunInfo) -> (&'static str, u32, bool, i32, Option<super::ShardId>) {
+    (
+        info.face_set.name(),
+        info.atoms,
+        info.ipr,
+        info.charge,
+        info.shard,
+    )
 }
 
 pub fn file_stats(path: &Path) -> Result<FileStats, CatalogueError> {
@@ -106,6 +123,31 @@ pub fn file_stats(path: &Path) -> Result<FileStats, CatalogueError> {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    #[test]
+    fn sizes_sort_numerically_not_by_name() {
+        let info = |atoms, ipr, charge| RunInfo {
+            face_set: crate::cage::FaceSet::Fullerene,
+            atoms,
+            ipr,
+            unit_count: 1,
+            unit_depth: 1,
+            shard: None,
+            made_by: String::new(),
+            all_starts: false,
+            charge,
+        };
+        let mut runs = [
+            info(100, false, 0),
+            info(20, false, 0),
+            info(60, true, -6),
+            info(60, false, 0),
+        ];
+        runs.sort_by_key(order_key);
+        let got: Vec<(u32, bool)> = runs.iter().map(|r| (r.atoms, r.ipr)).collect();
+        // By name, "fullerene-c100" sorts before "fullerene-c20".
+        assert_eq!(got, [(20, false), (60, false), (60, true), (100, false)]);
+    }
 
     #[test]
     fn histogram_puts_extremes_in_end_bins() {

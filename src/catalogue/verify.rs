@@ -1,10 +1,13 @@
-//! `verify`: reads every data file of a catalogue completely (header, index, every chunk's
-//! checksum and contents, index summaries against the decoded records) and lists runs still in
-//! progress. It reports; it never repairs.
+//! `verify`: reads every data file of a catalogue completely (header, name, index, every chunk's
+//! checksum and contents, index summaries against the decoded records, the records' Hückel
+//! filling against the header's charge) and checks the committed-units files of runs still in
+//! progress against their run. It reports; it never repairs.
 
 use super::chunk::ChunkStats;
 use super::format::DataFile;
-use super::{data_files, CatalogueError, Place};
+use super::resume::check_work_dir;
+use super::{data_files, CatalogueError, Place, RunInfo};
+use crate::score::Shell;
 use std::path::{Path, PathBuf};
 
 /// The state of one data file.
@@ -20,13 +23,16 @@ pub struct FileReport {
 #[derive(Debug)]
 pub struct VerifyReport {
     pub files: Vec<FileReport>,
-    /// Work directories of unfinished runs (`*.work`).
-    pub unfinished: Vec<PathBuf>,
+    /// Work directories of unfinished runs (`*.work`), with the run label when readable.
+    pub unfinished: Vec<(PathBuf, Option<String>)>,
+    /// Problems in work directories: unreadable run files, misnamed directories, committed-units
+    /// files of another run.
+    pub work_problems: Vec<CatalogueError>,
 }
 
 impl VerifyReport {
     pub fn is_ok(&self) -> bool {
-        self.files.iter().all(|f| f.problem.is_none())
+        self.files.iter().all(|f| f.problem.is_none()) && self.work_problems.is_empty()
     }
 }
 
@@ -47,10 +53,45 @@ pub fn verify(dir: &Path) -> Result<VerifyReport, CatalogueError> {
             },
         })
         .collect();
+    let mut unfinished = Vec::new();
+    let mut work_problems = Vec::new();
+    for work in unfinished_runs(dir)? {
+        match check_work_dir(&work) {
+            Ok((info, problems)) => {
+                unfinished.push((work, Some(info.label())));
+                work_problems.extend(problems);
+            }
+            Err(e) => {
+                unfinished.push((work, None));
+                work_problems.push(e);
+            }
+        }
+    }
     Ok(VerifyReport {
         files,
-        unfinished: unfinished_runs(dir)?,
+        unfinished,
+        work_problems,
     })
+}
+
+/// Whether a record's Hückel filling fits the run's charge: an odd electron count leaves a
+/// singly occupied orbital (and an open shell), an even one none.
+fn filling_fits(info: &RunInfo, somo: Option<f32>, shell: Shell) -> Result<(), String> {
+    let odd = (i64::from(info.atoms) - i64::from(info.charge)) % 2 != 0;
+    match (odd, somo.is_some()) {
+        (true, false) => Err(format!(
+            "no singly occupied orbital, but charge {:+} leaves an odd electron count",
+            info.charge
+        )),
+        (false, true) => Err(format!(
+            "a singly occupied orbital, but charge {:+} leaves an even electron count",
+            info.charge
+        )),
+        (false, false) if shell == Shell::OpenDoublet => {
+            Err("an open-shell doublet with an even electron count".into())
+        }
+        _ => Ok(()),
+    }
 }
 
 /// Fully checks one data file; returns (label, chunks, records).
@@ -65,6 +106,10 @@ pub fn verify_file(path: &Path) -> Result<(String, usize, u64), CatalogueError> 
         }
         for i in 0..chunk.len() {
             let r = chunk.record(i);
+            if let Err(d) = filling_fits(&file.info, r.somo, r.shell) {
+                let d = format!("record {i} has {d} (header charge {:+})", file.info.charge);
+                return Err(CatalogueError::corrupt(path, Place::Chunk(c as u32), d));
+            }
             if r.spiral().is_err() {
                 let d = format!(
                     "record {i} has a spiral that does not wind: {}",

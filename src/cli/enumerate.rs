@@ -1,7 +1,9 @@
-//! `cagerank enumerate`: list every isomer of the requested sizes.
+//! `cagerank enumerate`: list every isomer of the requested sizes, or write them scored into a
+//! catalogue (resumably, committing finished units every few seconds).
 
-use super::output::{write_line, Out};
+use super::output::{counted, write_line, Out};
 use super::progress;
+use super::query::catalogue_error;
 use super::sizes::{parse_sizes, Size};
 use super::CliError;
 use cagerank::catalogue::{self, made_by, Record, RunInfo, ShardId, Writer};
@@ -10,6 +12,12 @@ use cagerank::score::{self, huckel, Descriptors, ScoreError, Scored};
 use serde_json::json;
 use std::ops::ControlFlow;
 use std::path::{Path, PathBuf};
+use std::time::{Duration, Instant};
+
+/// How long one batch of units should take before it is committed: a run killed at any
+/// moment loses at most about this much work (more only when single units take longer).
+/// One commit is one small file and an fsync, so a few seconds keep its cost invisible.
+const COMMIT_EVERY: Duration = Duration::from_secs(3);
 
 #[derive(clap::Args, Debug)]
 pub struct Args {
@@ -47,7 +55,8 @@ pub struct Args {
     #[command(flatten)]
     pub charge: super::ChargeArg,
     /// Write scored isomers into this catalogue directory (resumable: run the same command again
-    /// after an interruption). Default directory: $CAGERANK_CATALOGUE or ./catalogues.
+    /// after an interruption). Default directory: $CAGERANK_CATALOGUE or ./catalogues. Runs of
+    /// different --charge values are kept side by side (fullerene-c80-ipr-q-6.cgr).
     #[arg(long, value_name = "DIR", num_args = 0..=1, default_missing_value = "")]
     pub catalogue: Option<PathBuf>,
 }
@@ -100,15 +109,19 @@ fn count_line(args: &Args, atoms: u64, count: u64) -> String {
     if args.json {
         json!({"atoms": atoms, "ipr": args.ipr, "isomers": count}).to_string()
     } else {
-        let list = if args.ipr { "IPR isomers" } else { "isomers" };
-        format!("C{atoms}: {count} {list}")
+        let counted = if args.ipr {
+            counted(count, "IPR isomer", "IPR isomers")
+        } else {
+            counted(count, "isomer", "isomers")
+        };
+        format!("C{atoms}: {counted}")
     }
 }
 
 fn run_size(out: &mut Out, args: &Args, atoms: u64) -> Result<(), CliError> {
     let spec = spec_for(args, atoms)?;
     if !args.count_only {
-        huckel::filled_orbitals(atoms as usize, args.charge.charge)
+        huckel::occupation(atoms as usize, args.charge.charge)
             .map_err(|e| CliError::usage(e.to_string()))?;
     }
     if let Some(dir) = &args.catalogue {
@@ -162,8 +175,8 @@ fn run_size(out: &mut Out, args: &Args, atoms: u64) -> Result<(), CliError> {
     Ok(())
 }
 
-/// Enumerates the units the catalogue still lacks, scores them and commits them window by
-/// window; a killed run resumes from the last committed window.
+/// Enumerates the units the catalogue still lacks, scores them and commits them in batches of
+/// about [`COMMIT_EVERY`]; a killed run resumes from the last committed batch.
 fn write_catalogue(out: &mut Out, args: &Args, spec: &Spec, dir: &Path) -> Result<(), CliError> {
     let dir = if dir.as_os_str().is_empty() {
         catalogue::default_dir()
@@ -183,6 +196,7 @@ fn write_catalogue(out: &mut Out, args: &Args, spec: &Spec, dir: &Path) -> Resul
         }),
         made_by: made_by(),
         all_starts: spec.all_starts,
+        charge: args.charge.charge,
     };
     let mut writer = Writer::open(&dir, info).map_err(catalogue_error)?;
     let pending: std::collections::BTreeSet<u32> = writer.pending_units().into_iter().collect();
@@ -197,30 +211,39 @@ fn write_catalogue(out: &mut Out, args: &Args, spec: &Spec, dir: &Path) -> Resul
             .map_err(|e: ScoreError| e.to_string())?;
         Record::from_descriptors(&f.spiral, f.ipr, &d)
     };
-    enumerate::run_units_mapped(spec, &todo, args.threads, to_record, |window| {
-        let mut batch: Vec<(u32, Vec<Record>)> = Vec::with_capacity(window.len());
-        for (unit, found) in window {
-            let mut records = Vec::with_capacity(found.len());
-            for (f, r) in found {
-                match r {
-                    Ok(rec) => records.push(rec),
-                    Err(e) => {
-                        failure = Some(CliError::failed(format!("scoring {}: {e}", f.spiral)));
-                        return ControlFlow::Break(());
+    let mut batches = Batches::new(args.threads);
+    while failure.is_none() {
+        let Some(batch) = batches.next(&todo) else {
+            break;
+        };
+        let started = Instant::now();
+        enumerate::run_units_mapped(spec, batch, args.threads, to_record, |window| {
+            let mut batch: Vec<(u32, Vec<Record>)> = Vec::with_capacity(window.len());
+            for (unit, found) in window {
+                let mut records = Vec::with_capacity(found.len());
+                for (f, r) in found {
+                    match r {
+                        Ok(rec) => records.push(rec),
+                        Err(e) => {
+                            failure = Some(CliError::failed(format!("scoring {}: {e}", f.spiral)));
+                            return ControlFlow::Break(());
+                        }
                     }
                 }
+                batch.push((unit, records));
             }
-            batch.push((unit, records));
-        }
-        let refs: Vec<(u32, &[Record])> = batch.iter().map(|(u, r)| (*u, r.as_slice())).collect();
-        if let Err(e) = writer.commit_units(&refs) {
-            failure = Some(catalogue_error(e));
-            return ControlFlow::Break(());
-        }
-        bar.inc(batch.len() as u64);
-        ControlFlow::Continue(())
-    })
-    .map_err(|e| CliError::failed(e.to_string()))?;
+            let refs: Vec<(u32, &[Record])> =
+                batch.iter().map(|(u, r)| (*u, r.as_slice())).collect();
+            if let Err(e) = writer.commit_units(&refs) {
+                failure = Some(catalogue_error(e));
+                return ControlFlow::Break(());
+            }
+            bar.inc(batch.len() as u64);
+            ControlFlow::Continue(())
+        })
+        .map_err(|e| CliError::failed(e.to_string()))?;
+        batches.took(started.elapsed());
+    }
     bar.finish_and_clear();
     if let Some(e) = failure {
         return Err(e);
@@ -231,22 +254,61 @@ fn write_catalogue(out: &mut Out, args: &Args, spec: &Spec, dir: &Path) -> Resul
                "catalogue": done.path.display().to_string()})
         .to_string()
     } else {
+        let counted = if spec.ipr {
+            counted(done.records, "IPR isomer", "IPR isomers")
+        } else {
+            counted(done.records, "isomer", "isomers")
+        };
         format!(
-            "C{}: {} {} written to {}",
+            "C{}: {counted} written to {}",
             spec.atoms,
-            done.records,
-            if spec.ipr { "IPR isomers" } else { "isomers" },
             done.path.display()
         )
     };
     write_line(out, &line)
 }
 
-fn catalogue_error(e: catalogue::CatalogueError) -> CliError {
-    if e.is_data_error() {
-        CliError::usage(e.to_string())
-    } else {
-        CliError::failed(e.to_string())
+/// Cuts the units still to do into consecutive batches sized so that each takes about
+/// [`COMMIT_EVERY`], from the time the previous batch took. Unit costs vary by orders of
+/// magnitude along the spiral order, so the size follows them, within a factor of four per
+/// step; batch boundaries change only when units are committed, never the bytes written.
+struct Batches {
+    at: usize,
+    size: usize,
+    least: usize,
+    most: usize,
+}
+
+impl Batches {
+    fn new(threads: usize) -> Batches {
+        let threads = if threads == 0 {
+            rayon::current_num_threads()
+        } else {
+            threads
+        }
+        .max(1);
+        Batches {
+            at: 0,
+            size: 4 * threads,
+            least: threads,
+            // The enumerator hands results on in windows of 256 units per thread.
+            most: 256 * threads,
+        }
+    }
+
+    fn next<'u, T>(&mut self, units: &'u [T]) -> Option<&'u [T]> {
+        let start = self.at;
+        if start >= units.len() {
+            return None;
+        }
+        self.at = (start + self.size).min(units.len());
+        Some(&units[start..self.at])
+    }
+
+    fn took(&mut self, elapsed: Duration) {
+        let ratio = COMMIT_EVERY.as_secs_f64() / elapsed.as_secs_f64().max(1e-3);
+        let next = (self.size as f64 * ratio.clamp(0.25, 4.0)).round() as usize;
+        self.size = next.clamp(self.least, self.most);
     }
 }
 
@@ -274,4 +336,34 @@ fn isomer_line(args: &Args, atoms: u64, iso: &Isomer, d: Descriptors) -> String 
         d.shell.name(),
         iso.spiral
     )
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn batches_cover_every_unit_once_in_order_and_follow_the_time_taken() {
+        let units: Vec<u32> = (0..5000).collect();
+        let mut b = Batches::new(2);
+        let mut seen = Vec::new();
+        let mut sizes = Vec::new();
+        // Fast units (0.1 s a batch) grow the batch, at most fourfold per step and up to the
+        // enumerator's window; then slow ones (30 s a batch) shrink it, to one unit per thread.
+        let mut step = 0;
+        while let Some(batch) = b.next(&units) {
+            seen.extend_from_slice(batch);
+            sizes.push(batch.len());
+            let took = if step < 4 { 0.1 } else { 30.0 };
+            b.took(Duration::from_secs_f64(took));
+            step += 1;
+        }
+        assert_eq!(seen, units);
+        assert_eq!(&sizes[..7], &[8, 32, 128, 512, 512, 128, 32]);
+        assert!(sizes[7..sizes.len() - 1].iter().all(|&s| s >= 2));
+        // A batch that took exactly the target keeps its size.
+        let mut b = Batches::new(1);
+        b.took(COMMIT_EVERY);
+        assert_eq!(b.size, 4);
+    }
 }

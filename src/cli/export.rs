@@ -169,6 +169,7 @@ fn from_catalogue(
         atoms: atoms32,
         face_set: FaceSet::Fullerene,
         ipr,
+        charge: 0,
         filter: Filter::default(),
         rank_by: Vec::new(),
         top: Some(k),

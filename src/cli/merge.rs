@@ -1,7 +1,7 @@
 //! `cagerank merge`: combine shard catalogues (`--shard K/N` runs) into one catalogue that is
 //! byte-identical to an unsharded run. Parsing and printing only; see `catalogue::merge`.
 
-use super::output::{write_line, Out};
+use super::output::{counted, write_line, Out};
 use super::query::catalogue_error;
 use super::CliError;
 use cagerank::catalogue;
@@ -24,7 +24,11 @@ pub fn run(args: Args) -> Result<(), CliError> {
     for (path, records) in &report.written {
         write_line(
             &mut out,
-            &format!("wrote {} ({records} isomers)", path.display()),
+            &format!(
+                "wrote {} ({})",
+                path.display(),
+                counted(*records, "isomer", "isomers")
+            ),
         )?;
     }
     for path in &report.unchanged {

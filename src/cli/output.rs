@@ -48,3 +48,13 @@ pub fn write_line(out: &mut Out, line: &str) -> Result<(), CliError> {
         Err(e) => Err(CliError::failed(format!("cannot write output: {e}"))),
     }
 }
+
+/// "1 line", "3 lines": a count with its noun in the right number (`plural` is the noun's
+/// plural form, for nouns that do not just take an "s").
+pub fn counted(n: u64, singular: &str, plural: &str) -> String {
+    if n == 1 {
+        format!("1 {singular}")
+    } else {
+        format!("{n} {plural}")
+    }
+}

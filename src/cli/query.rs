@@ -6,8 +6,9 @@
 use super::output::{write_line, Out};
 use super::CliError;
 use cagerank::cage::FaceSet;
-use cagerank::catalogue::record::{parse_nmr, shell_from_name};
+use cagerank::catalogue::record::shell_from_name;
 use cagerank::catalogue::{self, CatalogueError, Filter, PointGroup, Query, Record};
+use cagerank::score::nmr::{format_pattern, parse_pattern};
 use cagerank::score::rank::parse_keys;
 use std::path::PathBuf;
 
@@ -39,6 +40,10 @@ pub struct Args {
     /// Face set of the cages: fullerene, 4-6 or 4-5-6.
     #[arg(long, default_value = "fullerene", value_name = "SET")]
     pub faces: String,
+    /// Read the run made for this cage charge (`enumerate --charge Q --catalogue`), e.g. -6 for
+    /// M3N@C80 screened as C80^6-.
+    #[command(flatten)]
+    pub charge: super::ChargeArg,
     /// Show only the best K.
     #[arg(long, value_name = "K")]
     pub top: Option<usize>,
@@ -51,15 +56,25 @@ pub struct Args {
     /// Keep cages whose Hückel HOMO-LUMO gap (in |beta|) is at least this.
     #[arg(long, value_name = "GAP")]
     pub min_gap: Option<f32>,
-    /// Keep one shell type: properly-closed, pseudo-closed, meta-closed or open.
+    /// Keep one shell type: properly-closed, pseudo-closed, meta-closed, open-doublet or open.
     #[arg(long, value_name = "TYPE")]
     pub shell: Option<String>,
     /// Keep one point group (Schoenflies symbol, e.g. D5h).
     #[arg(long, value_name = "GROUP")]
     pub point_group: Option<String>,
-    /// Keep cages with this 13C NMR pattern: MULTIPLICITYxLINES,... e.g. 8x10,4x1.
+    /// Keep cages with exactly this 13C NMR pattern, written LINESxINTENSITY,... as in the
+    /// literature: 3x10,2x20 is C70-D5h's 3 lines of intensity 10 and 2 of intensity 20. Lines
+    /// times intensity must add up to --atoms.
     #[arg(long, value_name = "PATTERN")]
     pub nmr: Option<String>,
+    /// Keep cages whose 13C NMR spectrum has this many lines (e.g. 19 for C76-D2).
+    #[arg(long, value_name = "N")]
+    pub nmr_lines: Option<u64>,
+    /// Keep cages whose predicted lines can merge into this measured pattern (LINESxINTENSITY,
+    /// e.g. 1x10,3x20 when two of C70's intensity-10 lines coincide): the predicted lines must
+    /// group into the measured ones with equal intensity sums.
+    #[arg(long, value_name = "PATTERN", conflicts_with = "nmr")]
+    pub nmr_merged: Option<String>,
     /// Keep chiral cages only.
     #[arg(long, conflicts_with = "achiral")]
     pub chiral: bool,
@@ -76,12 +91,14 @@ pub fn catalogue_dir(option: &Option<PathBuf>) -> PathBuf {
     option.clone().unwrap_or_else(catalogue::default_dir)
 }
 
-/// Damaged data and missing data are the user's to fix (exit 2); I/O and locks are failures.
+/// Damaged, mismatched or missing data and impossible requests are the user's to fix (exit 2);
+/// I/O failures and locks held by others are failures (exit 1). Every command that touches a
+/// catalogue maps its errors here, so the same bad input gives the same exit code everywhere.
 pub fn catalogue_error(e: CatalogueError) -> CliError {
-    match e {
-        CatalogueError::Missing { .. } | CatalogueError::Merge(_) => CliError::usage(e.to_string()),
-        e if e.is_data_error() => CliError::usage(e.to_string()),
-        e => CliError::failed(e.to_string()),
+    if e.is_user_error() {
+        CliError::usage(e.to_string())
+    } else {
+        CliError::failed(e.to_string())
     }
 }
 
@@ -104,7 +121,7 @@ fn build_query(args: &Args) -> Result<Query, CliError> {
     let shell = match &args.shell {
         Some(s) => Some(shell_from_name(s).ok_or_else(|| {
             CliError::usage(format!(
-                "unknown shell type '{s}'; use properly-closed, pseudo-closed, meta-closed or open"
+                "unknown shell type '{s}'; use properly-closed, pseudo-closed, meta-closed, open-doublet or open"
             ))
         })?),
         None => None,
@@ -117,10 +134,15 @@ fn build_query(args: &Args) -> Result<Query, CliError> {
         })?),
         None => None,
     };
-    let nmr = match &args.nmr {
-        Some(p) => Some(parse_nmr(p).map_err(CliError::usage)?),
-        None => None,
-    };
+    let pattern =
+        |text: &str| parse_pattern(text, args.atoms).map_err(|e| CliError::usage(e.to_string()));
+    let nmr = args.nmr.as_deref().map(pattern).transpose()?;
+    let nmr_merged = args.nmr_merged.as_deref().map(pattern).transpose()?;
+    if args.nmr_lines == Some(0) {
+        return Err(CliError::usage(
+            "--nmr-lines 0 matches nothing; every cage has at least 1 line",
+        ));
+    }
     let chiral = match (args.chiral, args.achiral) {
         (true, _) => Some(true),
         (_, true) => Some(false),
@@ -134,12 +156,15 @@ fn build_query(args: &Args) -> Result<Query, CliError> {
         atoms: args.atoms,
         face_set: parse_faces(&args.faces)?,
         ipr: args.ipr,
+        charge: args.charge.charge,
         filter: Filter {
             max_pentagon_adjacencies: args.max_pentagon_adjacencies,
             min_gap: args.min_gap,
             shell,
             point_group,
             nmr,
+            nmr_lines: args.nmr_lines,
+            nmr_merged,
             chiral,
             ipr_only: false,
         },
@@ -153,9 +178,11 @@ pub fn run(args: Args) -> Result<(), CliError> {
     let dir = catalogue_dir(&args.catalogue);
     let records = catalogue::query(&dir, &query).map_err(catalogue_error)?;
     let mut out = Out::stdout();
+    // Every record of one run has the same electron count, so the SOMO column is all or none.
+    let somo = records.iter().any(|r| r.somo.is_some());
     match args.format {
-        Format::Table => print_table(&mut out, &records)?,
-        Format::Csv => print_csv(&mut out, &records)?,
+        Format::Table => print_table(&mut out, &records, somo)?,
+        Format::Csv => print_csv(&mut out, &records, somo)?,
         Format::Json => print_json(&mut out, &records)?,
     }
     if args.format == Format::Table {
@@ -170,12 +197,8 @@ fn number_text(n: Option<u64>) -> String {
     n.map_or("-".to_string(), |n| n.to_string())
 }
 
-fn nmr_text(r: &Record) -> String {
-    let parts: Vec<String> = r.nmr.iter().map(|(m, n)| format!("{m}x{n}")).collect();
-    parts.join(",")
-}
-
-const COLUMNS: [&str; 13] = [
+/// Column names; `somo` is shown only for runs with an odd electron count.
+const COLUMNS: [&str; 14] = [
     "rank",
     "number",
     "ipr_number",
@@ -184,6 +207,7 @@ const COLUMNS: [&str; 13] = [
     "shell",
     "hexagon_strain",
     "gap",
+    "somo",
     "pi_energy",
     "kekule",
     "chiral",
@@ -191,8 +215,20 @@ const COLUMNS: [&str; 13] = [
     "spiral",
 ];
 
-fn cells(rank: usize, r: &Record) -> [String; 13] {
-    [
+/// Index of the `somo` column in [`COLUMNS`].
+const SOMO: usize = 8;
+
+fn columns(somo: bool) -> Vec<&'static str> {
+    COLUMNS
+        .iter()
+        .enumerate()
+        .filter(|&(i, _)| somo || i != SOMO)
+        .map(|(_, c)| *c)
+        .collect()
+}
+
+fn cells(rank: usize, r: &Record, somo: bool) -> Vec<String> {
+    let all: [String; 14] = [
         rank.to_string(),
         number_text(r.number),
         number_text(r.ipr_number),
@@ -201,21 +237,28 @@ fn cells(rank: usize, r: &Record) -> [String; 13] {
         r.shell.name().to_string(),
         format!("{:.4}", r.hexagon_strain),
         format!("{:.4}", r.gap),
+        r.somo.map_or("-".to_string(), |x| format!("{x:.4}")),
         format!("{:.4}", r.pi_energy),
         r.kekule.to_string(),
         r.chiral.to_string(),
-        nmr_text(r),
+        format_pattern(&r.nmr),
         r.spiral_text(),
-    ]
+    ];
+    all.into_iter()
+        .enumerate()
+        .filter(|&(i, _)| somo || i != SOMO)
+        .map(|(_, c)| c)
+        .collect()
 }
 
-fn print_table(out: &mut Out, records: &[Record]) -> Result<(), CliError> {
-    let rows: Vec<[String; 13]> = records
+fn print_table(out: &mut Out, records: &[Record], somo: bool) -> Result<(), CliError> {
+    let rows: Vec<Vec<String>> = records
         .iter()
         .enumerate()
-        .map(|(i, r)| cells(i + 1, r))
+        .map(|(i, r)| cells(i + 1, r, somo))
         .collect();
-    let mut widths: Vec<usize> = COLUMNS.iter().map(|c| c.len()).collect();
+    let names = columns(somo);
+    let mut widths: Vec<usize> = names.iter().map(|c| c.len()).collect();
     for row in &rows {
         for (w, cell) in widths.iter_mut().zip(row) {
             *w = (*w).max(cell.len());
@@ -229,7 +272,7 @@ fn print_table(out: &mut Out, records: &[Record]) -> Result<(), CliError> {
             .collect();
         padded.join("  ").trim_end().to_string()
     };
-    write_line(out, &line(COLUMNS.to_vec()))?;
+    write_line(out, &line(names))?;
     for row in &rows {
         write_line(out, &line(row.iter().map(String::as_str).collect()))?;
     }
@@ -248,10 +291,10 @@ fn csv_field(s: &str) -> String {
     }
 }
 
-fn print_csv(out: &mut Out, records: &[Record]) -> Result<(), CliError> {
-    write_line(out, &COLUMNS.join(","))?;
+fn print_csv(out: &mut Out, records: &[Record], somo: bool) -> Result<(), CliError> {
+    write_line(out, &columns(somo).join(","))?;
     for (i, r) in records.iter().enumerate() {
-        let row: Vec<String> = cells(i + 1, r).iter().map(|c| csv_field(c)).collect();
+        let row: Vec<String> = cells(i + 1, r, somo).iter().map(|c| csv_field(c)).collect();
         write_line(out, &row.join(","))?;
     }
     Ok(())

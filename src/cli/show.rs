@@ -3,10 +3,10 @@
 //! Looks the isomer up with the enumerator, asks `score::full_record` for the numbers and prints
 //! them as a text block or one JSON object. The science lives in the library.
 
-use super::output::{write_line, Out};
+use super::output::{counted, write_line, Out};
 use super::CliError;
 use cagerank::enumerate::{self, Spec};
-use cagerank::score::{self, Descriptors, FullRecord, ScoreError};
+use cagerank::score::{self, nmr, Descriptors, FullRecord, ScoreError};
 use cagerank::spiral::{canonical_spiral, Spiral};
 
 /// Shown with every ranking-related output (text after the block, stderr with `--json`).
@@ -202,10 +202,7 @@ fn text_block(r: &FullRecord, spiral: &Spiral, charge: i32) -> Vec<String> {
             "hexagon neighbours    k=0..6: {:?}, strain (std. dev. of k) {:.4}",
             d.hexagon_neighbours, d.hexagon_strain
         ),
-        format!(
-            "Hückel (charge {charge:+})    HOMO {:.4}, LUMO {:.4}, gap {:.4} |beta|, {}, pi energy {:.4} |beta|/atom",
-            d.homo, d.lumo, d.gap, d.shell.name(), d.pi_energy
-        ),
+        huckel_text(d, charge),
         format!("Kekulé structures     {}", d.kekule),
         format!("Pauling bond orders   {}", range_text(&r.pauling_bond_orders)),
         format!("Coulson bond orders   {}", range_text(&r.coulson_bond_orders)),
@@ -222,14 +219,37 @@ pub(super) fn symmetry_text(d: &Descriptors) -> String {
     )
 }
 
-/// "11 lines: 10 of intensity 8, 1 of intensity 4" (shared with `identify`).
+/// The frontier orbitals: HOMO, LUMO and gap, or for an odd electron count HOMO, SOMO, LUMO
+/// and the gaps on either side of the SOMO.
+fn huckel_text(d: &Descriptors, charge: i32) -> String {
+    let levels = match d.somo {
+        None => format!(
+            "HOMO {:.4}, LUMO {:.4}, gap {:.4} |beta|",
+            d.homo, d.lumo, d.gap
+        ),
+        Some(somo) => format!(
+            "HOMO {:.4}, SOMO {somo:.4}, LUMO {:.4}; SOMO-LUMO gap {:.4}, HOMO-SOMO gap {:.4} |beta|",
+            d.homo,
+            d.lumo,
+            d.gap,
+            d.homo - somo
+        ),
+    };
+    format!(
+        "Hückel (charge {charge:+})    {levels}, {}, pi energy {:.4} |beta|/atom",
+        d.shell.name(),
+        d.pi_energy
+    )
+}
+
+/// "11 lines: 1x4,10x8" (lines x intensity, as the literature writes it; shared with
+/// `identify`).
 pub(super) fn nmr_text(nmr: &[(u32, u32)]) -> String {
-    let lines: u32 = nmr.iter().map(|&(_, count)| count).sum();
-    let parts: Vec<String> = nmr
-        .iter()
-        .map(|&(size, count)| format!("{count} of intensity {size}"))
-        .collect();
-    format!("{lines} lines: {}", parts.join(", "))
+    format!(
+        "{}: {}",
+        counted(nmr::line_count(nmr), "line", "lines"),
+        nmr::format_pattern(nmr)
+    )
 }
 
 fn range_text(values: &[f64]) -> String {

@@ -2,7 +2,7 @@
 //! descriptors (and the same charts as SVG with `--svg FILE`). Counting is done by
 //! `catalogue::stats`; this file only draws.
 
-use super::output::{write_line, Out};
+use super::output::{counted, write_line, Out};
 use super::query::{catalogue_dir, catalogue_error};
 use super::CliError;
 use cagerank::catalogue::format::write_atomic;
@@ -22,19 +22,37 @@ pub struct Args {
     /// Also draw the histograms into this SVG file.
     #[arg(long, value_name = "FILE")]
     pub svg: Option<PathBuf>,
+    /// Show the runs made for this cage charge (default: the neutral runs; other charges held
+    /// are listed at the end).
+    #[command(flatten)]
+    pub charge: super::ChargeArg,
 }
 
 pub fn run(args: Args) -> Result<(), CliError> {
     let dir = catalogue_dir(&args.catalogue);
-    let all = catalogue_stats(&dir).map_err(catalogue_error)?;
+    let everything = catalogue_stats(&dir).map_err(catalogue_error)?;
+    let want = args.charge.charge;
+    let (all, others): (Vec<FileStats>, Vec<FileStats>) =
+        everything.into_iter().partition(|s| s.info.charge == want);
     let mut out = Out::stdout();
     if all.is_empty() {
-        write_line(&mut out, &format!("no data files in {}", dir.display()))?;
+        let which = if want == 0 {
+            String::new()
+        } else {
+            format!(" for charge {want:+}")
+        };
+        write_line(
+            &mut out,
+            &format!("no data files{which} in {}", dir.display()),
+        )?;
     }
     for s in &all {
         for line in text_block(s) {
             write_line(&mut out, &line)?;
         }
+    }
+    if let Some(line) = other_charges(&others) {
+        write_line(&mut out, &line)?;
     }
     out.finish()?;
     if let Some(path) = &args.svg {
@@ -58,18 +76,29 @@ fn text_block(s: &FileStats) -> Vec<String> {
         .shard
         .map_or(String::new(), |k| format!(" [shard {k}]"));
     let mut lines = vec![format!(
-        "{}{shard}: {} isomers, {} IPR, {} chiral",
+        "{}{shard}: charge {}, {}, {} IPR, {} chiral",
         s.info.label(),
-        s.records,
+        charge_text(s.info.charge),
+        counted(s.records, "isomer", "isomers"),
         s.ipr,
         s.chiral
     )];
+    if s.records == 0 {
+        lines.push(String::new());
+        return lines;
+    }
     lines.push("  pentagon adjacencies".into());
     let max = s.pentagon_adjacencies.values().copied().max().unwrap_or(0);
     for (k, n) in &s.pentagon_adjacencies {
         lines.push(format!("  {k:>6} |{:<BAR$} {n}", bar(*n, max)));
     }
-    histogram_lines(&mut lines, "HOMO-LUMO gap (|beta|)", &s.gap);
+    let odd = (i64::from(s.info.atoms) - i64::from(s.info.charge)) % 2 != 0;
+    let gap = if odd {
+        "SOMO-LUMO gap (|beta|)"
+    } else {
+        "HOMO-LUMO gap (|beta|)"
+    };
+    histogram_lines(&mut lines, gap, &s.gap);
     histogram_lines(&mut lines, "hexagon strain", &s.strain);
     let list = |m: &std::collections::BTreeMap<&str, u64>| {
         m.iter()
@@ -83,13 +112,54 @@ fn text_block(s: &FileStats) -> Vec<String> {
     lines
 }
 
+/// A histogram as text bars; one line when every value is the same (nothing to spread).
 fn histogram_lines(lines: &mut Vec<String>, title: &str, h: &Histogram) {
+    let total: u64 = h.counts.iter().sum();
+    if total == 0 {
+        return;
+    }
+    if h.max <= h.min {
+        lines.push(format!("  {title}: all {:.3}", h.min));
+        return;
+    }
     lines.push(format!("  {title}"));
     let max = h.counts.iter().copied().max().unwrap_or(0);
     for (i, n) in h.counts.iter().enumerate() {
         let range = format!("{:.3}..{:.3}", h.edge(i), h.edge(i + 1));
         lines.push(format!("  {range:>15} |{:<BAR$} {n}", bar(*n, max)));
     }
+}
+
+/// "0", "-6", "+2".
+fn charge_text(q: i32) -> String {
+    if q == 0 {
+        "0".to_string()
+    } else {
+        format!("{q:+}")
+    }
+}
+
+/// One line naming the charges of the runs not shown, if any.
+fn other_charges(others: &[FileStats]) -> Option<String> {
+    let mut counts = std::collections::BTreeMap::<i32, u64>::new();
+    for s in others {
+        *counts.entry(s.info.charge).or_default() += 1;
+    }
+    let first = *counts.keys().next()?;
+    let list: Vec<String> = counts
+        .iter()
+        .map(|(q, n)| {
+            format!(
+                "charge {} ({})",
+                charge_text(*q),
+                counted(*n, "file", "files")
+            )
+        })
+        .collect();
+    Some(format!(
+        "also held: {}; show them with --charge {first}",
+        list.join(", ")
+    ))
 }
 
 /// Bar charts, one row of three per data file: pentagon adjacencies, gap, strain.

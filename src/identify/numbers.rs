@@ -141,14 +141,14 @@ pub fn from_catalogue(
     let wanted = special_faces_of(spiral);
     let mut complete = None;
     let mut ipr_number = (!ipr).then_some(Number::NotListed);
-    let whole = dir.join(data_file_name(FaceSet::Fullerene, atoms, false));
+    let whole = dir.join(data_file_name(FaceSet::Fullerene, atoms, false, 0));
     if let Some(record) = find_record(&whole, &wanted)? {
         complete = Some(record.0.map_or(Number::NotListed, Number::Listed));
         if ipr {
             ipr_number = record.1.map(Number::Listed);
         }
     }
-    let ipr_file = dir.join(data_file_name(FaceSet::Fullerene, atoms, true));
+    let ipr_file = dir.join(data_file_name(FaceSet::Fullerene, atoms, true, 0));
     if ipr && ipr_number.is_none() {
         if let Some(record) = find_record(&ipr_file, &wanted)? {
             ipr_number = record.1.map(Number::Listed);

@@ -41,9 +41,9 @@ pub fn pauling_bond_orders(cage: &Cage) -> Vec<f64> {
 /// orbitals of that level, which makes the result independent of the arbitrary basis the
 /// eigensolver picks inside the level.
 pub fn coulson_bond_orders(cage: &Cage, charge: i32) -> Result<Vec<f64>, HuckelError> {
-    let filled = huckel::filled_orbitals(cage.atoms(), charge)?;
+    let electrons = huckel::occupation(cage.atoms(), charge)?.electrons;
     let (values, vectors) = huckel::eigen_decomposition(cage);
-    let occupation = occupations(&values, 2 * filled);
+    let occupation = occupations(&values, electrons);
     Ok(cage
         .edges()
         .iter()

@@ -2,11 +2,13 @@
 //! shell type and pi energy, for the neutral cage or an ion of given charge.
 //!
 //! Orbital energies are alpha + x beta with beta < 0, so an eigenvalue x is in units of |beta| and
-//! larger x is more bonding (Fowler & Manolopoulos, *An Atlas of Fullerenes*, 1995). The
-//! eigensolver is faer's symmetric (self-adjoint) one: a textbook Householder + implicit QL
-//! (Wilkinson & Reinsch 1971) was slower (1.3 ms for a C100, measured 2026-12-02), and faer's
-//! tridiagonalisation followed by our own implicit QL was no faster. This module leaves bond
-//! orders to [`super::bonds`] and ranking to [`super::rank`]; it never mutates a cage.
+//! larger x is more bonding (Fowler & Manolopoulos, *An Atlas of Fullerenes*, 1995). An odd
+//! electron count (La@C82 screened as C82^3-, a radical) leaves one singly occupied orbital
+//! (SOMO) between the doubly occupied HOMO and the empty LUMO. The eigensolver is faer's
+//! symmetric (self-adjoint) one: a textbook Householder + implicit QL (Wilkinson & Reinsch 1971)
+//! was slower (1.3 ms for a C100, measured 2026-12-02), and faer's tridiagonalisation followed
+//! by our own implicit QL was no faster. This module leaves bond orders to [`super::bonds`] and
+//! ranking to [`super::rank`]; it never mutates a cage.
 
 use crate::cage::Cage;
 use crate::score::Shell;
@@ -27,25 +29,33 @@ pub const DEGENERACY_TOL: f64 = 1e-6;
 /// Frontier-orbital summary of a cage (or cage ion) in units of |beta|.
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub struct HuckelSummary {
-    /// Eigenvalue x of the highest occupied orbital.
+    /// Eigenvalue x of the highest doubly occupied orbital.
     pub homo: f64,
     /// Eigenvalue x of the lowest unoccupied orbital.
     pub lumo: f64,
-    /// HOMO - LUMO (>= 0; 0 within [`DEGENERACY_TOL`] for an open shell).
+    /// The gap that ranks: HOMO - LUMO for an even electron count, SOMO - LUMO for an odd one
+    /// (>= 0; 0 within [`DEGENERACY_TOL`] when the frontier level is degenerate).
     pub gap: f64,
-    /// Shell type after Fowler & Manolopoulos.
+    /// Eigenvalue x of the singly occupied orbital: present exactly when the electron count is odd.
+    pub somo: Option<f64>,
+    /// Shell type after Fowler & Manolopoulos, or [`Shell::OpenDoublet`] for a radical.
     pub shell: Shell,
-    /// Total pi energy per atom: (sum over filled orbitals of 2 x) / n, in |beta| (the alpha
-    /// part, the same for every isomer of a size, is left out).
+    /// Total pi energy per atom: (sum over occupied orbitals of occupation times x) / n, in
+    /// |beta| (the alpha part, the same for every isomer of a size, is left out).
     pub pi_energy: f64,
+}
+
+impl HuckelSummary {
+    /// HOMO - SOMO, the gap below the singly occupied orbital (odd electron counts only).
+    pub fn homo_somo_gap(&self) -> Option<f64> {
+        self.somo.map(|s| self.homo - s)
+    }
 }
 
 /// Why a charge cannot be applied to a cage.
 #[derive(Debug, Clone, PartialEq, Eq)]
 pub enum HuckelError {
-    /// n - Q is odd: the cage ion would be a radical, which a closed-shell filling cannot describe.
-    OddElectrons { electrons: i64 },
-    /// n - Q leaves no filled orbital (or is negative).
+    /// n - Q leaves no doubly filled orbital (or is negative).
     TooFewElectrons { electrons: i64 },
     /// n - Q fills every orbital, so there is no LUMO.
     TooManyElectrons { electrons: i64, orbitals: usize },
@@ -54,11 +64,6 @@ pub enum HuckelError {
 impl fmt::Display for HuckelError {
     fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
         match self {
-            HuckelError::OddElectrons { electrons } => write!(
-                f,
-                "the cage ion would have {electrons} pi electrons, an odd number; choose an even \
-                 charge (e.g. -6 or +2)"
-            ),
             HuckelError::TooFewElectrons { electrons } => write!(
                 f,
                 "the cage ion would have {electrons} pi electrons; choose a charge that leaves at \
@@ -79,23 +84,41 @@ impl fmt::Display for HuckelError {
 
 impl std::error::Error for HuckelError {}
 
-/// Number of doubly filled orbitals of the cage ion with `charge` (n - Q electrons), checking that
-/// at least one orbital is filled and one is empty.
-pub fn filled_orbitals(atoms: usize, charge: i32) -> Result<usize, HuckelError> {
+/// How the n - Q pi electrons of a cage ion fill its orbitals (lowest energy first).
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub struct Occupation {
+    /// n - Q.
+    pub electrons: usize,
+    /// Orbitals holding two electrons.
+    pub doubly: usize,
+    /// True if one more orbital holds a single electron (odd electron count: a doublet).
+    pub single: bool,
+}
+
+/// The filling of the cage ion with `charge` (n - Q electrons), checking that at least one
+/// orbital is doubly filled and one is left empty (so HOMO and LUMO exist).
+pub fn occupation(atoms: usize, charge: i32) -> Result<Occupation, HuckelError> {
     let electrons = atoms as i64 - charge as i64;
     if electrons < 2 {
         return Err(HuckelError::TooFewElectrons { electrons });
     }
-    if electrons % 2 != 0 {
-        return Err(HuckelError::OddElectrons { electrons });
-    }
+    // An odd count needs one orbital more (the SOMO), so 2n - 2 bounds both parities.
     if electrons > 2 * atoms as i64 - 2 {
         return Err(HuckelError::TooManyElectrons {
             electrons,
             orbitals: atoms,
         });
     }
-    Ok((electrons / 2) as usize)
+    Ok(Occupation {
+        electrons: electrons as usize,
+        doubly: (electrons / 2) as usize,
+        single: electrons % 2 == 1,
+    })
+}
+
+/// Number of doubly filled orbitals of the cage ion with `charge` (see [`occupation`]).
+pub fn filled_orbitals(atoms: usize, charge: i32) -> Result<usize, HuckelError> {
+    occupation(atoms, charge).map(|o| o.doubly)
 }
 
 /// The adjacency matrix (lower and upper triangle both filled).
@@ -154,22 +177,46 @@ fn solve(cage: &Cage, want: ComputeEigenvectors) -> (Vec<f64>, Option<Mat<f64>>)
 /// HOMO, LUMO, gap, shell type and pi energy per atom of the cage ion with `charge`, from the
 /// descending spectrum `eigenvalues`.
 ///
-/// With m = (n - charge)/2 filled orbitals, HOMO = x_(m) and LUMO = x_(m+1) (1-based). Shell
-/// types (Fowler & Manolopoulos): open if |HOMO - LUMO| <= [`DEGENERACY_TOL`]; otherwise an
-/// eigenvalue x counts as bonding only if x > [`DEGENERACY_TOL`], so an x within the tolerance of
-/// 0 is non-bonding: properly closed = HOMO bonding, LUMO not; pseudo-closed = both bonding;
-/// meta-closed = neither bonding.
+/// With m doubly filled orbitals, HOMO = x_(m) (1-based). An even count leaves LUMO = x_(m+1);
+/// an odd one puts the last electron in SOMO = x_(m+1) and LUMO = x_(m+2), and the ranking gap
+/// is SOMO - LUMO (`docs/ranking.md`). Shell types (Fowler & Manolopoulos) for even counts: open
+/// if |HOMO - LUMO| <= [`DEGENERACY_TOL`]; otherwise an eigenvalue x counts as bonding only if
+/// x > [`DEGENERACY_TOL`], so an x within the tolerance of 0 is non-bonding: properly closed =
+/// HOMO bonding, LUMO not; pseudo-closed = both bonding; meta-closed = neither bonding. Odd
+/// counts: an open-shell doublet when the SOMO is a level of its own (one unpaired electron in a
+/// non-degenerate orbital), open when it is degenerate with the HOMO or the LUMO (a partly
+/// filled degenerate level, as in C60^-).
 pub fn summarize(eigenvalues: &[f64], charge: i32) -> Result<HuckelSummary, HuckelError> {
     let n = eigenvalues.len();
-    let m = filled_orbitals(n, charge)?;
-    let (homo, lumo) = (eigenvalues[m - 1], eigenvalues[m]);
-    let pi_energy = 2.0 * eigenvalues[..m].iter().sum::<f64>() / n as f64;
+    let occ = occupation(n, charge)?;
+    let m = occ.doubly;
+    let doubly_sum: f64 = eigenvalues[..m].iter().sum();
+    let homo = eigenvalues[m - 1];
+    if !occ.single {
+        let lumo = eigenvalues[m];
+        return Ok(HuckelSummary {
+            homo,
+            lumo,
+            gap: homo - lumo,
+            somo: None,
+            shell: shell_type(homo, lumo),
+            pi_energy: 2.0 * doubly_sum / n as f64,
+        });
+    }
+    let (somo, lumo) = (eigenvalues[m], eigenvalues[m + 1]);
+    let degenerate = |a: f64, b: f64| (a - b).abs() <= DEGENERACY_TOL;
+    let shell = if degenerate(homo, somo) || degenerate(somo, lumo) {
+        Shell::Open
+    } else {
+        Shell::OpenDoublet
+    };
     Ok(HuckelSummary {
         homo,
         lumo,
-        gap: homo - lumo,
-        shell: shell_type(homo, lumo),
-        pi_energy,
+        gap: somo - lumo,
+        somo: Some(somo),
+        shell,
+        pi_energy: (2.0 * doubly_sum + somo) / n as f64,
     })
 }
 

@@ -25,7 +25,12 @@ pub enum Shell {
     PseudoClosed,
     /// HOMO and LUMO both non-bonding or antibonding.
     MetaClosed,
-    /// HOMO and LUMO degenerate: a partly filled level.
+    /// Odd electron count with the single electron in a non-degenerate orbital (SOMO): a
+    /// radical, e.g. La@C82 screened as C82^3-. Ranked after the closed shells and before a
+    /// partly filled degenerate level, which is also expected to distort.
+    OpenDoublet,
+    /// HOMO and LUMO degenerate (or, for odd counts, SOMO degenerate with either): a partly
+    /// filled level.
     Open,
 }
 
@@ -35,6 +40,7 @@ impl Shell {
             Shell::ProperlyClosed => "properly-closed",
             Shell::PseudoClosed => "pseudo-closed",
             Shell::MetaClosed => "meta-closed",
+            Shell::OpenDoublet => "open-doublet",
             Shell::Open => "open",
         }
     }
@@ -44,6 +50,7 @@ pub mod bonds;
 pub mod faces;
 pub mod huckel;
 pub mod kekule;
+pub mod nmr;
 mod pfaffian;
 pub mod rank;
 pub mod symmetry;
@@ -112,9 +119,14 @@ pub struct Descriptors {
     pub hexagon_neighbours: [u32; 7],
     /// Standard deviation of the hexagon neighbour counts.
     pub hexagon_strain: f64,
+    /// Highest doubly occupied orbital.
     pub homo: f64,
     pub lumo: f64,
+    /// HOMO - LUMO, or SOMO - LUMO for an odd electron count (the gap that ranks).
     pub gap: f64,
+    /// Singly occupied orbital, for odd electron counts only (absent from JSON otherwise).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub somo: Option<f64>,
     pub shell: Shell,
     /// Pi energy per atom (beta part only).
     pub pi_energy: f64,
@@ -124,7 +136,8 @@ pub struct Descriptors {
     pub automorphisms: u32,
     pub point_group: PointGroup,
     pub chiral: bool,
-    /// 13C NMR pattern: [site multiplicity, number of such sites], largest multiplicity first.
+    /// 13C NMR pattern: [intensity (atoms per site), number of such lines], largest intensity
+    /// first; printed as LINESxINTENSITY by [`nmr::format_pattern`].
     pub nmr: Vec<(u32, u32)>,
 }
 
@@ -158,7 +171,7 @@ pub fn describe_all(spirals: &[Spiral], charge: i32) -> Vec<Result<Descriptors, 
 }
 
 fn check_inputs(cage: &Cage, canonical: &Canonical, charge: i32) -> Result<(), ScoreError> {
-    huckel::filled_orbitals(cage.atoms(), charge)?;
+    huckel::occupation(cage.atoms(), charge)?;
     match canonical.automorphisms.first() {
         Some(a) if a.atoms.len() != cage.atoms() => Err(ScoreError::Mismatch {
             cage: cage.atoms(),
@@ -185,6 +198,7 @@ fn describe_with(
         homo: hmo.homo,
         lumo: hmo.lumo,
         gap: hmo.gap,
+        somo: hmo.somo,
         shell: hmo.shell,
         pi_energy: hmo.pi_energy,
         kekule: kekule::kekule_count(cage).to_string(),

@@ -231,7 +231,7 @@ pub struct Symmetry {
     pub point_group: PointGroup,
     /// True if the group has no improper element, so the cage has a distinct mirror image.
     pub chiral: bool,
-    /// 13C NMR pattern: (site multiplicity, number of such sites), largest multiplicity first.
+    /// 13C NMR pattern: (intensity = atoms per site, number of such lines), largest intensity first.
     pub nmr: Vec<(u32, u32)>,
 }
 
