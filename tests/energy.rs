@@ -803,3 +803,23 @@ fn undefined_geometries_give_nan_not_a_panic() {
     // The workspace is still good afterwards.
     assert!(evaluator.energy(&distorted_c60()).is_finite());
 }
+
+// The opt-in parallel eigensolver changes rounding only (common practice, no source: the same
+// backward-stable algorithm with another summation order).
+#[test]
+fn the_parallel_eigensolver_agrees_with_the_sequential_one() {
+    let x = distorted_c60();
+    let mut evaluator = Evaluator::new(60, -1).unwrap();
+    let mut grad = vec![0.0; x.len()];
+    let sequential = evaluator.energy_gradient(&x, &mut grad);
+    let sequential_grad = grad.clone();
+    evaluator.set_threads(2);
+    let parallel = evaluator.energy_gradient(&x, &mut grad);
+    assert!((parallel - sequential).abs() < 1e-9 * sequential.abs());
+    let worst = grad
+        .iter()
+        .zip(&sequential_grad)
+        .map(|(a, b)| (a - b).abs())
+        .fold(0.0, f64::max);
+    assert!(worst < 1e-8, "{worst}");
+}
