@@ -823,3 +823,36 @@ fn the_parallel_eigensolver_agrees_with_the_sequential_one() {
         .fold(0.0, f64::max);
     assert!(worst < 1e-8, "{worst}");
 }
+
+// Every fullerene isomer C20-C36 (OEIS A007894: 1+0+1+1+2+3+6+6+15 = 35 cages), neutral and
+// as the anion (odd, often a partly filled degenerate level), relaxes to convergence and keeps
+// its bond graph: fullerenes are local minima of carbon potentials (common practice, no
+// source), so a failure here is a bug in the forces, the filling or the saddle handling.
+#[test]
+fn every_small_fullerene_relaxes_and_keeps_its_bonds_neutral_and_as_anion() {
+    use cagerank::enumerate::{enumerate, Options};
+    let mut checked = 0;
+    for atoms in (20..=36).step_by(2).filter(|&n| n != 22) {
+        let spec = Spec::fullerene(atoms, false).unwrap();
+        let mut isomers = Vec::new();
+        enumerate(
+            &spec,
+            &Options::default(),
+            |_, _| {},
+            |iso| isomers.push(iso.spiral),
+        )
+        .unwrap();
+        for spiral in isomers {
+            let cage = spiral.to_cage();
+            for charge in [0, -1] {
+                let r = energy::relax(&cage, charge, Settings::default()).unwrap();
+                assert!(
+                    r.converged && r.graph_kept,
+                    "C{atoms} {spiral} Q {charge}: {r:?}"
+                );
+                checked += 1;
+            }
+        }
+    }
+    assert_eq!(checked, 2 * 35);
+}
