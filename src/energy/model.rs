@@ -69,14 +69,6 @@ impl Evaluator {
     pub fn new(atoms: usize, charge: i32) -> Result<Evaluator, EnergyError> {
         let electrons = electron_count(atoms, charge)?;
         let dim = ORBITALS * atoms;
-        let scratch = [Par::Seq, Par::rayon(0)]
-            .into_iter()
-            .flat_map(|par| {
-                [ComputeEigenvectors::Yes, ComputeEigenvectors::No].map(|want| {
-                    evd::self_adjoint_evd_scratch::<f64>(dim, want, par, Default::default())
-                })
-            })
-            .fold(StackReq::EMPTY, StackReq::or);
         // A fullerene atom has 3 bonded and 6 second neighbours within 2.6 Å; room for 16 each
         // covers strongly distorted cages without growing.
         let pair_capacity = (8 * atoms).min(atoms * atoms.saturating_sub(1) / 2);
@@ -87,7 +79,7 @@ impl Evaluator {
             hamiltonian: Mat::zeros(dim, dim),
             levels: Diag::zeros(dim),
             vectors: Mat::zeros(dim, dim),
-            scratch: MemBuffer::new(scratch),
+            scratch: MemBuffer::new(scratch_for(dim, Par::Seq)),
             level_list: vec![0.0; dim],
             occupations: vec![0.0; dim],
             weighted: vec![0.0; dim * dim],
@@ -117,6 +109,10 @@ impl Evaluator {
         } else {
             Par::rayon(threads)
         };
+        let needed = scratch_for(ORBITALS * self.atoms, self.par);
+        if !MemStack::new(&mut self.scratch).can_hold(needed) {
+            self.scratch = MemBuffer::new(needed);
+        }
     }
 
     /// Band and repulsive energy of the last evaluation.
@@ -302,6 +298,14 @@ impl Evaluator {
             }
         }
     }
+}
+
+/// Workspace of faer's symmetric eigensolver for a `dim`-square matrix, with or without vectors.
+fn scratch_for(dim: usize, par: Par) -> StackReq {
+    let want = [ComputeEigenvectors::Yes, ComputeEigenvectors::No];
+    want.into_iter()
+        .map(|w| evd::self_adjoint_evd_scratch::<f64>(dim, w, par, Default::default()))
+        .fold(StackReq::EMPTY, StackReq::or)
 }
 
 /// <iμ|H|jν> for the unit vector u from i to j (Slater & Koster 1954, sp3 block), μ, ν = s, x,

@@ -1,9 +1,11 @@
 //! Relaxation of a cage in the tight-binding model: L-BFGS, preconditioned with the bond graph's
-//! Laplacian, from the force-field geometry (or a given start) to a force threshold, a second run from a perturbed start when the first stops
-//! on a symmetric saddle point, and a check that the relaxed bonds are still the cage's edges.
+//! Laplacian, from the force-field geometry (or a given start) to a force threshold; a second
+//! run from a perturbed start when the first stops on a symmetric saddle point; and a check that
+//! the relaxed bonds are still the cage's edges.
 //!
 //! The energy and forces come from [`Evaluator`]; the minimiser is
-//! [`crate::geometry::minimise::lbfgs`]; the starting geometry from [`crate::geometry::relax`].
+//! [`crate::geometry::minimise::lbfgs_preconditioned`]; the starting geometry comes from
+//! [`crate::geometry::relax`].
 
 use super::{EnergyError, Evaluator, Relaxed, Settings};
 use crate::cage::Cage;
