@@ -130,8 +130,9 @@ impl IsomerId {
     }
 
     /// Parses `C84:IPR-23`, `C84:all-23`, `C84_IPR-23` (a file stem), `84:ipr23`, or a bare
-    /// `C84:23` whose list is `bare_list`. When the ID names a list and `bare_list` is the other
-    /// one, the request is contradictory and refused. Numbers start at 1.
+    /// `C84:23` whose list is `bare_list`. An ID naming the complete list while `bare_list` is
+    /// the IPR list (`--ipr` given) is contradictory and refused; an ID naming the IPR list wins
+    /// over a default of the complete list. Numbers start at 1.
     pub fn parse(text: &str, bare_list: Option<List>) -> Result<IsomerId, IdError> {
         let malformed = || IdError::Malformed {
             text: text.to_string(),
@@ -153,11 +154,13 @@ impl IsomerId {
             return Err(malformed());
         }
         let list = match (named, bare_list) {
-            (Some(n), Some(asked)) if n != asked => {
+            // `--ipr` is a request; its absence is not, so only an ID naming the complete
+            // list under `--ipr` contradicts the caller.
+            (Some(List::All), Some(List::Ipr)) => {
                 return Err(IdError::ListConflict {
                     text: text.to_string(),
-                    asked,
-                })
+                    asked: List::Ipr,
+                });
             }
             (Some(n), _) => n,
             (None, Some(asked)) => asked,
@@ -235,6 +238,8 @@ mod tests {
             IsomerId::parse("C84:all-23", Some(List::Ipr)),
             Err(IdError::ListConflict { .. })
         ));
+        let named = IsomerId::parse("C84:IPR-23", Some(List::All)).unwrap();
+        assert_eq!(named.list, List::Ipr);
     }
 
     #[test]

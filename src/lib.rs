@@ -16,4 +16,5 @@ pub mod geometry;
 pub mod id;
 pub mod identify;
 pub mod score;
+pub mod screen;
 pub mod spiral;

@@ -89,15 +89,12 @@ impl EnergyHeader {
     }
 }
 
-/// The file name for energies of one run and charge. Neutral runs share the data file's stem.
+/// The file name for energies of one run and charge: the data file's name with the energy
+/// extension (`fullerene-c80-ipr-q-6.energies`).
 pub fn energy_file_name(face_set: FaceSet, atoms: u32, ipr: bool, charge: i32) -> String {
-    let list = if ipr { "ipr" } else { "all" };
-    let q = if charge == 0 {
-        String::new()
-    } else {
-        format!("-q{charge:+}")
-    };
-    format!("{}-c{atoms}-{list}{q}.{ENERGY_EXT}", face_set.name())
+    let data = super::data_file_name(face_set, atoms, ipr, charge);
+    let stem = data.strip_suffix(super::DATA_EXT).unwrap_or(&data);
+    format!("{stem}{ENERGY_EXT}")
 }
 
 /// One relaxed isomer.

@@ -2,6 +2,7 @@
 //! printing. No science lives here; every subcommand calls into the library.
 
 mod draw;
+mod energy;
 mod enumerate;
 mod export;
 mod identify;
@@ -9,6 +10,7 @@ mod merge;
 mod output;
 mod progress;
 mod query;
+mod screen;
 mod show;
 mod sizes;
 mod spiral;
@@ -96,6 +98,11 @@ pub enum Command {
     Verify(verify::Args),
     /// Name the isomer(s) held in an XYZ or SDF file (bonds perceived from distances).
     Identify(identify::Args),
+    /// Relax named isomers with a carbon tight-binding model and report their energies.
+    Energy(energy::Args),
+    /// Rank one size by relaxed tight-binding energy: graph descriptors pick candidates, the
+    /// relaxation ranks them (screening heuristics, not stability predictions).
+    Screen(screen::Args),
 }
 
 pub fn run(cli: Cli) -> Result<(), CliError> {
@@ -110,5 +117,7 @@ pub fn run(cli: Cli) -> Result<(), CliError> {
         Command::Export(a) => export::run(a),
         Command::Draw(a) => draw::run(a),
         Command::Identify(a) => identify::run(a),
+        Command::Energy(a) => energy::run(a),
+        Command::Screen(a) => screen::run(a),
     }
 }
