@@ -383,7 +383,7 @@ use cagerank::enumerate::{isomer_numbered, number_of_from, published_count, End}
 #[test]
 fn published_totals_equal_the_search_where_it_is_cheap() {
     // The library's table is OEIS A007894 / A046880 from memory; the search must agree.
-    for n in (20..=56).step_by(2).filter(|&n| n != 22) {
+    for n in (20..=50).step_by(2).filter(|&n| n != 22) {
         let spec = Spec::fullerene(n, false).unwrap();
         assert_eq!(
             published_count(&spec),
