@@ -67,7 +67,7 @@ pub fn run(args: Args) -> Result<(), CliError> {
         .catalogue
         .clone()
         .or_else(|| Some(catalogue::default_dir()).filter(|d| d.is_dir()));
-    let (spiral, numbers) = super::export::locate(id, dir.as_deref())?;
+    let (spiral, numbers) = super::export::locate(id, dir.as_deref(), false)?;
     let cage = spiral.to_cage();
     let automorphisms = canonical_spiral(&cage)
         .map(|c| c.automorphisms)

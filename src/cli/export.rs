@@ -184,10 +184,20 @@ pub fn parse_id(text: &str, ipr: bool) -> Result<IsomerId, CliError> {
     parsed.map_err(|e| CliError::usage(e.to_string()))
 }
 
-/// Finds the isomer named by `id` (catalogue first, else a search up to it) with both numbers.
-pub fn locate(id: IsomerId, catalogue: Option<&Path>) -> Result<(Spiral, Numbers), CliError> {
+/// Finds the isomer named by `id` (catalogue first, else a search up to it) with its number in
+/// the other list too (searched for only with `both`; otherwise only if a catalogue has it).
+pub fn locate(
+    id: IsomerId,
+    catalogue: Option<&Path>,
+    both: bool,
+) -> Result<(Spiral, Numbers), CliError> {
     let mut bar = LazyBar::new(format!("finding {id}"));
-    let found = numbers::locate(id, catalogue, &mut |done, total| bar.update(done, total));
+    let mut progress = |done, total| bar.update(done, total);
+    let found = if both {
+        numbers::locate(id, catalogue, &mut progress)
+    } else {
+        numbers::locate_in_list(id, catalogue, &mut progress)
+    };
     bar.finish();
     match found.map_err(|e| match e {
         numbers::NumbersError::Size(e) => CliError::usage(e.to_string()),
@@ -264,7 +274,7 @@ fn by_ids(ids: &str, args: &Args) -> Result<Vec<Pick>, CliError> {
     let dir = numbers_dir(args);
     let mut out: Vec<Pick> = Vec::new();
     for id in asked {
-        let (spiral, numbers) = locate(id, dir.as_deref())?;
+        let (spiral, numbers) = locate(id, dir.as_deref(), true)?;
         if let Some(first) = out.iter().find(|p| p.1 == spiral) {
             eprintln!(
                 "cagerank: note: {id} is the same isomer as {}; exported once, as {}",

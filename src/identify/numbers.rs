@@ -212,11 +212,31 @@ fn listed(n: Option<u64>) -> Number {
 }
 
 /// The isomer named by `id`, with both numbers: from the catalogue in `catalogue` when it holds
-/// the list (a direct index), otherwise by searching the list up to the number. `Ok(None)` if
-/// the list is shorter than the number. This is what `show C84:IPR-23` needs.
+/// the list (a direct index), otherwise by searching the list up to the number; the other
+/// list's number likewise (within the search limits). `Ok(None)` if the list is shorter than
+/// the number. This is what `show C84:IPR-23` needs.
 pub fn locate(
     id: IsomerId,
     catalogue: Option<&Path>,
+    progress: Progress,
+) -> Result<Option<Located>, NumbersError> {
+    locate_with(id, catalogue, true, progress)
+}
+
+/// As [`locate`], but the other list's number is only read from a catalogue, never searched
+/// for (it is `NotComputed` otherwise): for a caller that needs the cage, not both numbers.
+pub fn locate_in_list(
+    id: IsomerId,
+    catalogue: Option<&Path>,
+    progress: Progress,
+) -> Result<Option<Located>, NumbersError> {
+    locate_with(id, catalogue, false, progress)
+}
+
+fn locate_with(
+    id: IsomerId,
+    catalogue: Option<&Path>,
+    search_other: bool,
     progress: Progress,
 ) -> Result<Option<Located>, NumbersError> {
     let spec =
@@ -246,7 +266,11 @@ pub fn locate(
             ipr: Number::NotListed,
         },
         (c, i) => {
-            let mut rest = numbers_with_progress(&spiral, ipr, catalogue, progress)?;
+            let mut rest = if search_other {
+                numbers_with_progress(&spiral, ipr, catalogue, progress)?
+            } else {
+                catalogue_only(&spiral, ipr, catalogue)?
+            };
             if let Some(c) = c {
                 rest.complete = Number::Listed(c);
             }
@@ -257,6 +281,23 @@ pub fn locate(
         }
     };
     Ok(Some(Located { spiral, numbers }))
+}
+
+/// Numbers a catalogue gives, `NotComputed` for the rest.
+fn catalogue_only(
+    spiral: &Spiral,
+    ipr: bool,
+    catalogue: Option<&Path>,
+) -> Result<Numbers, NumbersError> {
+    let (complete, ipr_number) = match catalogue {
+        Some(dir) => from_catalogue(dir, spiral, ipr).map_err(NumbersError::Catalogue)?,
+        None => (None, None),
+    };
+    let not_computed = Number::NotComputed { limit: 0 };
+    Ok(Numbers {
+        complete: complete.unwrap_or(not_computed),
+        ipr: ipr_number.unwrap_or(if ipr { not_computed } else { Number::NotListed }),
+    })
 }
 
 fn spiral_is_ipr(spiral: &Spiral) -> bool {
