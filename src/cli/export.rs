@@ -236,11 +236,17 @@ impl LazyBar {
 
     /// Called with (units done, units to run).
     pub fn update(&mut self, done: usize, total: usize) {
-        let bar = self
-            .bar
-            .get_or_insert_with(|| super::progress::bar(total as u64, &self.what, false));
-        bar.set_length(total as u64);
-        bar.set_position(done as u64);
+        if self.bar.is_none() {
+            // The first report may already be some way in: start the rate and ETA from there.
+            let bar = super::progress::bar(total as u64, &self.what, false);
+            bar.set_position(done as u64);
+            bar.reset_eta();
+            self.bar = Some(bar);
+        }
+        if let Some(bar) = &self.bar {
+            bar.set_length(total as u64);
+            bar.set_position(done as u64);
+        }
     }
 
     pub fn finish(self) {
@@ -347,7 +353,14 @@ fn by_enumeration(spec: &Spec, k: usize) -> Result<Vec<Pick>, CliError> {
     .map_err(|e| CliError::failed(e.to_string()))?;
     bar.finish_and_clear();
     let spirals: Vec<Spiral> = isomers.iter().map(|i| i.spiral.clone()).collect();
-    let described = score::describe_all(&spirals, 0);
+    // Scored in slices so that a bar can show progress (C84 alone has 51,592 isomers).
+    let mut bar = LazyBar::new(format!("C{} score", spec.atoms));
+    let mut described = Vec::with_capacity(spirals.len());
+    for slice in spirals.chunks(4096) {
+        described.extend(score::describe_all(slice, 0));
+        bar.update(described.len(), spirals.len());
+    }
+    bar.finish();
     let mut scored = Vec::with_capacity(isomers.len());
     for (iso, d) in isomers.iter().zip(described) {
         let d = d.map_err(|e| CliError::failed(e.to_string()))?;

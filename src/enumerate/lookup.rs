@@ -32,8 +32,10 @@ const IPR_COUNTS: [u64; 31] = [
     1799, 2355, 3342, 4468, 6063, 8148, 10774,
 ];
 
-/// Units per window when counting: enough for rayon to balance, few enough for a live bar.
-const COUNT_WINDOW: usize = 64;
+/// Units per window when counting: each unit's pieces already run in parallel, so a few units
+/// keep both cores busy, and the bar moves after each window (the last units of a list can take
+/// seconds each).
+const COUNT_WINDOW: usize = 8;
 
 /// Largest window when walking units in order to find a position.
 const MAX_WALK_WINDOW: usize = 64;
