@@ -338,6 +338,14 @@ fn existing_files_are_never_replaced_without_overwrite() {
     };
     export::write_all(&entries, &formats, &dir, &replace).unwrap();
     assert!(std::fs::read_to_string(&path).unwrap().starts_with("60\n"));
+    // A manifest of another layout (an older version's) is not mixed with ours: refused before
+    // any file is written.
+    let other = temp_dir("foreign");
+    std::fs::write(other.join("manifest.csv"), "id,spiral,point_group,files\n").unwrap();
+    let err = export::write_all(&entries, &formats, &other, &WriteOptions::default()).unwrap_err();
+    assert!(matches!(err, ExportError::ForeignManifest { .. }), "{err}");
+    assert!(!other.join("C60_all-1812.xyz").exists());
+    std::fs::remove_dir_all(&other).unwrap();
     // Two entries with one ID would share every file.
     let err = export::write_all(&[c60(), c60()], &formats, &dir, &replace).unwrap_err();
     assert!(matches!(err, ExportError::SameFile { .. }), "{err}");

@@ -19,6 +19,9 @@ const FIXED: [&str; 7] = [
     "files",
 ];
 
+/// How every manifest this version writes begins (the fixed columns before the descriptors).
+pub const HEADER_START: &str = "id,list,number,ipr_number,spiral,point_group,";
+
 /// Writes the header and one row per entry; `files[i]` lists the file names of entry i.
 pub fn write(w: &mut impl Write, entries: &[Entry], files: &[Vec<String>]) -> io::Result<()> {
     let Some(first) = entries.first() else {

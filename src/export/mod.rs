@@ -433,6 +433,13 @@ pub const SUMMARIES: [&str; 2] = ["shortlist.sdf", "manifest.csv"];
 /// already exists in `dir` (other than the [`SUMMARIES`], which are updated). Callers run it
 /// before the slow work, and [`write_all`] again.
 pub fn check_targets(names: &[String], dir: &Path, overwrite: bool) -> Result<(), ExportError> {
+    if let Ok(text) = fs::read_to_string(dir.join("manifest.csv")) {
+        if !text.is_empty() && !text.starts_with(manifest::HEADER_START) {
+            return Err(ExportError::ForeignManifest {
+                path: dir.join("manifest.csv"),
+            });
+        }
+    }
     let mut seen = BTreeSet::new();
     for name in names {
         if !seen.insert(name.as_str()) {
@@ -462,6 +469,26 @@ pub fn write_all(
     check_targets(&planned_files(&stems, formats), dir, options.overwrite)?;
     let formats = with_dependencies(formats);
     let files: Vec<Vec<String>> = stems.iter().map(|s| file_names(s, &formats)).collect();
+    // The shared files are merged in memory first, so a foreign manifest stops the export
+    // before anything is written.
+    let ids: BTreeSet<String> = entries.iter().map(|e| e.id.to_string()).collect();
+    let shortlist = if formats.contains(&Format::Sdf) {
+        let mut ours = Vec::new();
+        for e in entries {
+            write_sdf(&mut ours, e).map_err(|source| io_error(dir, "shortlist.sdf", source))?;
+        }
+        Some(merged_shortlist(
+            &read_existing(dir, "shortlist.sdf")?,
+            &ours,
+            &ids,
+        ))
+    } else {
+        None
+    };
+    let mut ours = Vec::new();
+    manifest::write(&mut ours, entries, &files)
+        .map_err(|source| io_error(dir, "manifest.csv", source))?;
+    let manifest = merged_manifest(dir, &read_existing(dir, "manifest.csv")?, &ours, &ids)?;
     let mut written = Vec::new();
     let mut put = |name: &str, fill: &mut dyn FnMut(&mut BufWriter<File>) -> io::Result<()>| {
         let path = dir.join(name);
@@ -484,20 +511,10 @@ pub fn write_all(
             }
         }
     }
-    let ids: BTreeSet<String> = entries.iter().map(|e| e.id.to_string()).collect();
-    if formats.contains(&Format::Sdf) {
-        let mut ours = Vec::new();
-        for e in entries {
-            write_sdf(&mut ours, e).map_err(|source| io_error(dir, "shortlist.sdf", source))?;
-        }
-        let text = merged_shortlist(&read_existing(dir, "shortlist.sdf")?, &ours, &ids);
+    if let Some(text) = shortlist {
         put("shortlist.sdf", &mut |w| w.write_all(&text))?;
     }
-    let mut ours = Vec::new();
-    manifest::write(&mut ours, entries, &files)
-        .map_err(|source| io_error(dir, "manifest.csv", source))?;
-    let text = merged_manifest(dir, &read_existing(dir, "manifest.csv")?, &ours, &ids)?;
-    put("manifest.csv", &mut |w| w.write_all(&text))?;
+    put("manifest.csv", &mut |w| w.write_all(&manifest))?;
     Ok(written)
 }
 
