@@ -282,17 +282,11 @@ fn png_has_the_signature_and_the_svg_size_times_the_scale() {
 }
 
 #[test]
-fn pdf_is_a_pdf_document() {
-    let svg = svg_of(
-        &cage(20, &(1..=12).collect::<Vec<u64>>()),
-        draw::Options::default(),
-    );
-    let out = render::render(&svg, ImageFormat::Pdf).unwrap();
-    // ISO 32000-1 (PDF 1.7), 7.5.2 and 7.5.5: a header line `%PDF-1.n`, and `%%EOF` at the end.
-    assert!(out.bytes.starts_with(b"%PDF-1."));
-    let tail =
-        String::from_utf8_lossy(&out.bytes[out.bytes.len().saturating_sub(16)..]).into_owned();
-    assert!(tail.contains("%%EOF"), "{tail:?}");
+fn pdf_is_refused_with_a_pointer_to_svg_and_png() {
+    let err = ImageFormat::from_path(Path::new("c60.pdf")).unwrap_err();
+    assert_eq!(err, RenderError::NoPdf);
+    let message = err.to_string();
+    assert!(message.contains(".svg") && message.contains(".png") && !message.contains('\n'));
 }
 
 #[test]
@@ -309,14 +303,10 @@ fn the_caution_is_metadata_not_part_of_the_picture() {
 
 #[test]
 fn only_known_extensions_name_a_format() {
-    for (name, format) in [
-        ("x.svg", ImageFormat::Svg),
-        ("dir/X.PNG", ImageFormat::Png),
-        ("x.pdf", ImageFormat::Pdf),
-    ] {
+    for (name, format) in [("x.svg", ImageFormat::Svg), ("dir/X.PNG", ImageFormat::Png)] {
         assert_eq!(ImageFormat::from_path(Path::new(name)), Ok(format));
     }
-    for name in ["x.jpg", "x", "x.svg.bak", ".png"] {
+    for name in ["x.jpg", "x", "x.svg.bak", ".png", "x.pdf.txt"] {
         assert!(
             matches!(
                 ImageFormat::from_path(Path::new(name)),
@@ -378,6 +368,13 @@ fn command_line_writes_the_format_the_extension_asks_for() {
     assert_eq!(code, 2, "{err}");
     assert!(out.is_empty() && !jpg.exists());
     assert_eq!(err.trim().lines().count(), 1, "{err}");
-    assert!(err.contains(".svg, .png, .pdf"), "{err}");
+    assert!(err.contains(".svg, .png"), "{err}");
+    let pdf = dir.join("c60.pdf");
+    let (code, _, err) = cagerank(&["draw", "C60:IPR-1", "-o", pdf.to_str().unwrap()]);
+    assert_eq!(code, 2, "{err}");
+    assert!(
+        !pdf.exists() && err.contains("PDF output is not built in"),
+        "{err}"
+    );
     std::fs::remove_dir_all(&dir).unwrap();
 }

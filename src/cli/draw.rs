@@ -1,5 +1,5 @@
-//! `cagerank draw`: a Schlegel diagram of one isomer as SVG, PNG or PDF (by the output's
-//! extension), written atomically.
+//! `cagerank draw`: a Schlegel diagram of one isomer as SVG or PNG (by the output's extension),
+//! written atomically.
 //!
 //! Finds the isomer by its ID (catalogue first, else a search up to it), reads its symmetry
 //! from the canonical spiral and hands everything to `draw`, which lays it out, writes the SVG
@@ -30,7 +30,7 @@ pub enum OuterArg {
     Hexagon,
 }
 
-/// Draw a Schlegel diagram (the cage seen through one face) as SVG, PNG or PDF.
+/// Draw a Schlegel diagram (the cage seen through one face) as SVG or PNG.
 #[derive(clap::Args, Debug)]
 pub struct Args {
     /// The isomer, e.g. C84:IPR-23 or C84:all-51591; a bare C84:23 is in the IPR list with
@@ -40,8 +40,8 @@ pub struct Args {
     /// Read a bare number in ID as a position in the IPR list.
     #[arg(long)]
     pub ipr: bool,
-    /// Output file; its extension picks the format: .svg, .png (rasterised at twice the SVG
-    /// size) or .pdf.
+    /// Output file; its extension picks the format: .svg or .png (rasterised at twice the SVG
+    /// size). For PDF write .svg and convert it with any SVG tool.
     #[arg(short = 'o', long = "output", value_name = "FILE")]
     pub output: PathBuf,
     /// Catalogue directory to find the isomer in (default: $CAGERANK_CATALOGUE or ./catalogues

@@ -1,6 +1,8 @@
-//! Turning the SVG of a drawing into the file format its name asks for: SVG as written, PNG
-//! rasterised by resvg, PDF converted by svg2pdf (both read the SVG through usvg, so the three
-//! show the same picture).
+//! Turning the SVG of a drawing into the file format its name asks for: SVG as written, or PNG
+//! rasterised by resvg (which reads the SVG through usvg, so both show the same picture). PDF is
+//! refused with a pointer to SVG and PNG: the one pure-Rust converter (svg2pdf) took about 170 s
+//! of CPU to compile on the project's machine, twice resvg's 87 s, for a format any SVG tool
+//! produces.
 //!
 //! Text needs fonts. The system's fonts are loaded and the SVG's generic `sans-serif` family is
 //! pointed at one that exists (usvg would otherwise look for Arial and drop text it cannot set);
@@ -32,11 +34,10 @@ const SANS_FAMILIES: [&str; 6] = [
 pub enum ImageFormat {
     Svg,
     Png,
-    Pdf,
 }
 
 /// The extensions accepted, for messages.
-pub const EXTENSIONS: &str = ".svg, .png, .pdf";
+pub const EXTENSIONS: &str = ".svg, .png";
 
 impl ImageFormat {
     /// The format a file name asks for by its extension (case-insensitive).
@@ -48,7 +49,7 @@ impl ImageFormat {
         match ext.as_deref() {
             Some("svg") => Ok(ImageFormat::Svg),
             Some("png") => Ok(ImageFormat::Png),
-            Some("pdf") => Ok(ImageFormat::Pdf),
+            Some("pdf") => Err(RenderError::NoPdf),
             _ => Err(RenderError::UnknownExtension {
                 name: path.display().to_string(),
             }),
@@ -62,6 +63,8 @@ pub enum RenderError {
     UnknownExtension {
         name: String,
     },
+    /// PDF output is not built in.
+    NoPdf,
     /// The SVG could not be read back (a bug in the SVG writer) or converted.
     Convert(String),
 }
@@ -73,6 +76,10 @@ impl fmt::Display for RenderError {
                 f,
                 "cannot tell the image format of '{}' from its extension; name the file with one of {EXTENSIONS}",
                 crate::id::printable(name)
+            ),
+            RenderError::NoPdf => write!(
+                f,
+                "PDF output is not built in; write .svg (vector: any SVG tool, e.g. rsvg-convert -f pdf, turns it into PDF) or .png"
             ),
             RenderError::Convert(e) => write!(f, "cannot convert the drawing: {e}"),
         }
@@ -86,7 +93,7 @@ impl std::error::Error for RenderError {}
 pub struct Rendered {
     pub bytes: Vec<u8>,
     /// True when the picture has text but no font could be found to draw it, so it was left
-    /// out (PNG and PDF only).
+    /// out (PNG only).
     pub text_dropped: bool,
 }
 
@@ -128,7 +135,7 @@ fn parse(svg: &str) -> Result<(usvg::Tree, bool), RenderError> {
     Ok((tree, missing && svg.contains("<text")))
 }
 
-/// `svg` in `format`: as it is, as PNG at [`PNG_SCALE`], or as a one-page PDF.
+/// `svg` in `format`: as it is, or as PNG at [`PNG_SCALE`].
 pub fn render(svg: &str, format: ImageFormat) -> Result<Rendered, RenderError> {
     match format {
         ImageFormat::Svg => Ok(Rendered {
@@ -149,19 +156,6 @@ pub fn render(svg: &str, format: ImageFormat) -> Result<Rendered, RenderError> {
             let bytes = pixmap
                 .encode_png()
                 .map_err(|e| RenderError::Convert(e.to_string()))?;
-            Ok(Rendered {
-                bytes,
-                text_dropped,
-            })
-        }
-        ImageFormat::Pdf => {
-            let (tree, text_dropped) = parse(svg)?;
-            let bytes = svg2pdf::to_pdf(
-                &tree,
-                svg2pdf::ConversionOptions::default(),
-                svg2pdf::PageOptions::default(),
-            )
-            .map_err(|e| RenderError::Convert(e.to_string()))?;
             Ok(Rendered {
                 bytes,
                 text_dropped,
