@@ -9,6 +9,6 @@ out=${1:-demo-output}
 mkdir -p "$out"
 "$bin" enumerate 60..84 --ipr --catalogue "$out/catalogue" --quiet
 "$bin" query --catalogue "$out/catalogue" --atoms 84 --ipr --top 5
-"$bin" export --catalogue "$out/catalogue" --atoms 84 --ipr --top 3 --format xyz,sdf,json --out "$out/c84-shortlist"
+"$bin" export --catalogue "$out/catalogue" --atoms 84 --ipr --top 3 --format xyz,sdf,json --overwrite --out "$out/c84-shortlist"
 "$bin" draw C84:23 --ipr -o "$out/c84-23.svg"
 echo "wrote $out/ (catalogue, C84 shortlist with XYZ/SDF/JSON, Schlegel drawing)"

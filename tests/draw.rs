@@ -223,3 +223,158 @@ fn asking_for_a_missing_face_kind_is_an_error() {
     let err = draw::schlegel_svg(&mut Vec::new(), &c20, &[], "C20", options).unwrap_err();
     assert!(matches!(err, draw::DrawError::NoSuchFace { size: 6 }));
 }
+
+// ---- Output formats ----
+
+use cagerank::draw::render::{self, ImageFormat, RenderError};
+use cagerank::draw::svg;
+use cagerank::export::CAUTION;
+use std::path::{Path, PathBuf};
+use std::process::Command;
+
+/// The `width` and `height` attributes of the root `<svg>` element.
+fn svg_size(svg: &str) -> (f64, f64) {
+    let start = svg.find("<svg").unwrap();
+    let tag = &svg[start..start + svg[start..].find('>').unwrap()];
+    (attr(tag, "width"), attr(tag, "height"))
+}
+
+/// Decodes a PNG with the `png` crate (an independent decoder): (width, height, RGBA rows).
+fn decode_png(bytes: &[u8]) -> (u32, u32, Vec<u8>) {
+    let mut decoder = png::Decoder::new(bytes);
+    decoder.set_transformations(png::Transformations::EXPAND);
+    let mut reader = decoder.read_info().unwrap();
+    let mut buf = vec![0; reader.output_buffer_size()];
+    let info = reader.next_frame(&mut buf).unwrap();
+    assert_eq!(info.color_type, png::ColorType::Rgba);
+    buf.truncate(info.buffer_size());
+    (info.width, info.height, buf)
+}
+
+#[test]
+fn png_has_the_signature_and_the_svg_size_times_the_scale() {
+    let svg = svg_of(&cage(60, &C60), draw::Options::default());
+    let out = render::render(&svg, ImageFormat::Png).unwrap();
+    // PNG specification (W3C, 2003), section 5.2: the eight-byte signature.
+    assert_eq!(
+        out.bytes[..8],
+        [0x89, b'P', b'N', b'G', 0x0d, 0x0a, 0x1a, 0x0a]
+    );
+    let (w, h) = svg_size(&svg);
+    let (pw, ph, pixels) = decode_png(&out.bytes);
+    let scale = f64::from(render::PNG_SCALE);
+    assert_eq!((f64::from(pw), f64::from(ph)), (w * scale, h * scale));
+    // The title is drawn in the caption strip below the diagram, left of x = 300 user units;
+    // with fonts there it must leave dark pixels there, else the renderer must say it dropped
+    // the text.
+    let dark = (0..ph as usize)
+        .filter(|&y| {
+            let user_y = y as f64 / scale;
+            user_y > w + 2.0 && user_y < w + 22.0
+        })
+        .flat_map(|y| (0..(300.0 * scale) as usize).map(move |x| (y * pw as usize + x) * 4))
+        .filter(|&i| pixels[i] < 100 && pixels[i + 1] < 100 && pixels[i + 2] < 100)
+        .count();
+    assert!(
+        out.text_dropped || dark > 50,
+        "title missing: {dark} dark pixels"
+    );
+}
+
+#[test]
+fn pdf_is_refused_with_a_pointer_to_svg_and_png() {
+    let err = ImageFormat::from_path(Path::new("c60.pdf")).unwrap_err();
+    assert_eq!(err, RenderError::NoPdf);
+    let message = err.to_string();
+    assert!(message.contains(".svg") && message.contains(".png") && !message.contains('\n'));
+}
+
+#[test]
+fn the_caution_is_metadata_not_part_of_the_picture() {
+    let svg = svg_of(&cage(60, &C60), draw::Options::default());
+    assert!(svg.contains(&format!("<desc>{}</desc>", svg::escape(CAUTION))));
+    let drawn: Vec<&str> = svg
+        .split("<text")
+        .skip(1)
+        .map(|t| &t[t.find('>').unwrap() + 1..t.find("</text>").unwrap()])
+        .collect();
+    assert!(drawn.iter().all(|t| !t.contains("screening")), "{drawn:?}");
+}
+
+#[test]
+fn only_known_extensions_name_a_format() {
+    for (name, format) in [("x.svg", ImageFormat::Svg), ("dir/X.PNG", ImageFormat::Png)] {
+        assert_eq!(ImageFormat::from_path(Path::new(name)), Ok(format));
+    }
+    for name in ["x.jpg", "x", "x.svg.bak", ".png", "x.pdf.txt"] {
+        assert!(
+            matches!(
+                ImageFormat::from_path(Path::new(name)),
+                Err(RenderError::UnknownExtension { .. })
+            ),
+            "{name}"
+        );
+    }
+}
+
+fn cagerank(args: &[&str]) -> (i32, String, String) {
+    let catalogue = Path::new(env!("CARGO_MANIFEST_DIR")).join("catalogues");
+    let out = Command::new(env!("CARGO_BIN_EXE_cagerank"))
+        .args(args)
+        .env("CAGERANK_CATALOGUE", catalogue)
+        .output()
+        .expect("the binary runs");
+    (
+        out.status.code().unwrap_or(-1),
+        String::from_utf8_lossy(&out.stdout).into_owned(),
+        String::from_utf8_lossy(&out.stderr).into_owned(),
+    )
+}
+
+fn temp(name: &str) -> PathBuf {
+    let dir = std::env::temp_dir().join(format!("cagerank-draw-{name}-{}", std::process::id()));
+    let _ = std::fs::remove_dir_all(&dir);
+    std::fs::create_dir_all(&dir).unwrap();
+    dir
+}
+
+#[test]
+fn command_line_writes_the_format_the_extension_asks_for() {
+    let dir = temp("cli");
+    let png_path = dir.join("c60.png");
+    let (code, _, err) = cagerank(&["draw", "C60:IPR-1", "-o", png_path.to_str().unwrap()]);
+    assert_eq!(code, 0, "{err}");
+    let bytes = std::fs::read(&png_path).unwrap();
+    assert!(bytes.starts_with(&[0x89, b'P', b'N', b'G']));
+    assert_eq!(
+        err.matches("screening heuristics").count(),
+        1,
+        "caution once: {err}"
+    );
+    let svg_path = dir.join("c60.svg");
+    let (code, _, err) = cagerank(&["draw", "C60:IPR-1", "-o", svg_path.to_str().unwrap()]);
+    assert_eq!(code, 0, "{err}");
+    let svg = std::fs::read_to_string(&svg_path).unwrap();
+    assert!(
+        svg.contains("<title>C60:IPR-1 = C60:all-1812  spiral"),
+        "{svg}"
+    );
+    let (w, h) = svg_size(&svg);
+    let (pw, ph, _) = decode_png(&bytes);
+    assert_eq!((f64::from(pw), f64::from(ph)), (2.0 * w, 2.0 * h));
+    // An extension that names no supported format is refused before any work, in one line.
+    let jpg = dir.join("c60.jpg");
+    let (code, out, err) = cagerank(&["draw", "C60:IPR-1", "-o", jpg.to_str().unwrap()]);
+    assert_eq!(code, 2, "{err}");
+    assert!(out.is_empty() && !jpg.exists());
+    assert_eq!(err.trim().lines().count(), 1, "{err}");
+    assert!(err.contains(".svg, .png"), "{err}");
+    let pdf = dir.join("c60.pdf");
+    let (code, _, err) = cagerank(&["draw", "C60:IPR-1", "-o", pdf.to_str().unwrap()]);
+    assert_eq!(code, 2, "{err}");
+    assert!(
+        !pdf.exists() && err.contains("PDF output is not built in"),
+        "{err}"
+    );
+    std::fs::remove_dir_all(&dir).unwrap();
+}

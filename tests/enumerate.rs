@@ -375,3 +375,112 @@ proptest! {
         prop_assert_eq!(canon.automorphisms.len() as u32, iso.automorphisms);
     }
 }
+
+// ---- Numbering one isomer without listing the size ----
+
+use cagerank::enumerate::{isomer_numbered, number_of_from, published_count, End};
+
+#[test]
+fn published_totals_equal_the_search_where_it_is_cheap() {
+    // The library's table is OEIS A007894 / A046880 from memory; the search must agree.
+    for n in (20..=50).step_by(2).filter(|&n| n != 22) {
+        let spec = Spec::fullerene(n, false).unwrap();
+        assert_eq!(
+            published_count(&spec),
+            Some(enumerate::count(&spec, 0).unwrap()),
+            "C{n}"
+        );
+    }
+    for n in (60..=90).step_by(2) {
+        let spec = Spec::fullerene(n, true).unwrap();
+        assert_eq!(
+            published_count(&spec),
+            Some(enumerate::count(&spec, 0).unwrap()),
+            "IPR C{n}"
+        );
+    }
+    // A search not known to be complete gets no total (its count may be short).
+    let mut partial = Spec::fullerene(100, false).unwrap();
+    partial.all_starts = false;
+    assert_eq!(published_count(&partial), None);
+}
+
+#[test]
+fn numbering_from_either_end_matches_the_full_list() {
+    for (atoms, ipr) in [(40u64, false), (84, true)] {
+        let spec = Spec::fullerene(atoms, ipr).unwrap();
+        for iso in all(atoms, ipr, 0, None) {
+            for end in [End::Front, End::Back] {
+                let got = number_of_from(&spec, &iso.spiral, Some(end), |_, _| {}).unwrap();
+                assert_eq!(
+                    (got.number, got.ipr_number),
+                    (iso.number, iso.ipr_number),
+                    "{end:?}"
+                );
+            }
+        }
+    }
+    // The IPR number inside the complete list, counted from the back: C60-Ih (Atlas, from
+    // memory: C60:1812, the only IPR C60).
+    let spec = Spec::fullerene(60, false).unwrap();
+    let ih = all(60, false, 0, None).pop().unwrap();
+    let got = number_of_from(&spec, &ih.spiral, Some(End::Back), |_, _| {}).unwrap();
+    assert_eq!((got.number, got.ipr_number), (Some(1812), Some(1)));
+}
+
+#[test]
+fn a_late_isomer_is_numbered_from_the_last_units_only() {
+    // C60-Ih is last of 1812 (Atlas, from memory): only the units after its own may run.
+    let spec = Spec::fullerene(60, false).unwrap();
+    let units = enumerate::units(&spec).len();
+    let ih = all(60, false, 0, None).pop().unwrap();
+    let mut most = 0;
+    let got = enumerate::number_of(&spec, &ih.spiral, |done, _| most = most.max(done)).unwrap();
+    assert_eq!(got.number, Some(1812));
+    assert!(most * 10 < units, "ran {most} of {units} units");
+    let mut most = 0;
+    let found = isomer_numbered(&spec, 1812, |done, _| most = most.max(done)).unwrap();
+    assert_eq!(found.spiral, ih.spiral);
+    assert!(most * 10 < units, "walked {most} of {units} units");
+}
+
+#[test]
+fn isomers_are_found_by_number_in_either_half_of_the_list() {
+    let list = all(50, false, 0, None);
+    let spec = Spec::fullerene(50, false).unwrap();
+    for iso in list.iter().step_by(7).chain(list.last()) {
+        let found = isomer_numbered(&spec, iso.number.unwrap(), |_, _| {}).unwrap();
+        assert_eq!(found, *iso);
+    }
+    // OEIS A007894: 271 isomers of C50, so 272 is past the end (refused without a search).
+    assert_eq!(
+        isomer_numbered(&spec, 272, |_, _| panic!("no search")),
+        None
+    );
+    assert_eq!(isomer_numbered(&spec, 0, |_, _| {}), None);
+    let ipr = Spec::fullerene(84, true).unwrap();
+    for iso in all(84, true, 0, None) {
+        let found = isomer_numbered(&ipr, iso.ipr_number.unwrap(), |_, _| {}).unwrap();
+        assert_eq!(found, iso);
+    }
+}
+
+#[test]
+fn a_spiral_without_a_size_is_wound_at_the_one_size_that_closes() {
+    use cagerank::identify::size::sizes_closing;
+    // Spirals as the tool prints them: C60-Ih, C70-D5h and IPR C84:23 (D2d).
+    let c84 = enumerate::find_by_number(&Spec::fullerene(84, true).unwrap(), 23).unwrap();
+    for (atoms, spiral) in [
+        (60, all(60, false, 0, None).pop().unwrap().spiral),
+        (70, all(70, true, 0, None).pop().unwrap().spiral),
+        (84, c84.spiral),
+    ] {
+        let indices: Vec<u64> = spiral
+            .pentagon_indices()
+            .iter()
+            .map(|&i| u64::from(i))
+            .collect();
+        let found = sizes_closing(&indices).unwrap();
+        assert_eq!(found.closing, vec![spiral], "C{atoms}");
+    }
+}

@@ -151,7 +151,7 @@ fn every_isomer_c20_to_c44_round_trips() {
         round_trip(&list, atoms);
         // Numbers: the identified spiral's position equals the enumerator's number.
         for iso in &list {
-            let n = position_in_list(&iso.spiral, false).expect("enumeration runs");
+            let n = position_in_list(&iso.spiral, false);
             assert_eq!(n, Number::Listed(iso.number.expect("complete run")));
         }
     }
@@ -165,7 +165,7 @@ fn every_ipr_isomer_c60_to_c84_round_trips() {
         let list = isomers(atoms, true);
         round_trip(&list, atoms);
         for iso in &list {
-            let n = position_in_list(&iso.spiral, true).expect("enumeration runs");
+            let n = position_in_list(&iso.spiral, true);
             assert_eq!(n, Number::Listed(iso.ipr_number.expect("IPR run")));
         }
     }
@@ -417,7 +417,7 @@ fn command_line_reports_each_record_of_a_mixed_file() {
     let path = data("mixed.sdf");
     let (code, out, err) = cagerank(&["identify", path.to_str().unwrap()]);
     assert_eq!(code, 2, "{err}");
-    assert_eq!(out.matches("C20:1").count(), 2, "{out}");
+    assert_eq!(out.matches("C20:all-1 ").count(), 2, "{out}");
     has(
         &out,
         &["structure 2 of 3", "not identified", "--ignore-elements Sc"],

@@ -1,12 +1,17 @@
-//! `cagerank draw`: a Schlegel diagram of one isomer as SVG, written atomically.
+//! `cagerank draw`: a Schlegel diagram of one isomer as SVG or PNG (by the output's extension),
+//! written atomically.
 //!
-//! Finds the isomer by its ID with the enumerator, reads its symmetry from the canonical spiral
-//! and hands everything to `draw`, which lays it out and writes the SVG.
+//! Finds the isomer by its ID (catalogue first, else a search up to it), reads its symmetry
+//! from the canonical spiral and hands everything to `draw`, which lays it out, writes the SVG
+//! and converts it. The caution is printed once on stderr, not drawn.
 
 use super::CliError;
+use cagerank::catalogue;
+use cagerank::draw::render::{self, ImageFormat};
 use cagerank::draw::{self, Colouring, OuterFace};
 use cagerank::export::{write_atomic, CAUTION};
 use cagerank::spiral::canonical_spiral;
+use std::io::Write;
 use std::path::PathBuf;
 
 #[derive(clap::ValueEnum, Clone, Copy, Debug)]
@@ -25,18 +30,24 @@ pub enum OuterArg {
     Hexagon,
 }
 
-/// Draw a Schlegel diagram (the cage seen through one face) as SVG.
+/// Draw a Schlegel diagram (the cage seen through one face) as SVG or PNG.
 #[derive(clap::Args, Debug)]
 pub struct Args {
-    /// The isomer, e.g. C84:23 (number in the complete list, or in the IPR list with --ipr).
+    /// The isomer, e.g. C84:IPR-23 or C84:all-51591; a bare C84:23 is in the IPR list with
+    /// --ipr, else in the complete list.
     #[arg(value_name = "ID")]
     pub id: String,
-    /// Read the number in ID as a position in the IPR list.
+    /// Read a bare number in ID as a position in the IPR list.
     #[arg(long)]
     pub ipr: bool,
-    /// Output SVG file.
-    #[arg(short = 'o', long = "output", value_name = "FILE.svg")]
+    /// Output file; its extension picks the format: .svg or .png (rasterised at twice the SVG
+    /// size). For PDF write .svg and convert it with any SVG tool.
+    #[arg(short = 'o', long = "output", value_name = "FILE")]
     pub output: PathBuf,
+    /// Catalogue directory to find the isomer in (default: $CAGERANK_CATALOGUE or ./catalogues
+    /// when present; otherwise the list is searched up to the number).
+    #[arg(long, value_name = "DIR")]
+    pub catalogue: Option<PathBuf>,
     /// What the colours show.
     #[arg(long = "color", value_enum, default_value = "faces")]
     pub colour: ColourArg,
@@ -49,8 +60,14 @@ pub struct Args {
 }
 
 pub fn run(args: Args) -> Result<(), CliError> {
-    let (atoms, number) = super::export::parse_id(&args.id)?;
-    let (spiral, _) = super::export::find(atoms, number, args.ipr)?;
+    let format =
+        ImageFormat::from_path(&args.output).map_err(|e| CliError::usage(e.to_string()))?;
+    let id = super::export::parse_id(&args.id, args.ipr)?;
+    let dir = args
+        .catalogue
+        .clone()
+        .or_else(|| Some(catalogue::default_dir()).filter(|d| d.is_dir()));
+    let (spiral, numbers) = super::export::locate(id, dir.as_deref(), false)?;
     let cage = spiral.to_cage();
     let automorphisms = canonical_spiral(&cage)
         .map(|c| c.automorphisms)
@@ -68,28 +85,36 @@ pub fn run(args: Args) -> Result<(), CliError> {
             Some(OuterArg::Hexagon) => OuterFace::Hexagon,
         },
     };
-    let list = if args.ipr {
-        "IPR list"
-    } else {
-        "complete list"
-    };
-    let title = format!("C{atoms}:{number} ({list})  spiral {spiral}");
-    let mut failure = None;
-    write_atomic(&args.output, |w| {
-        draw::schlegel_svg(w, &cage, &automorphisms, &title, options).map_err(|e| match e {
-            draw::DrawError::Io(io) => io,
-            other => {
-                let message = other.to_string();
-                failure = Some(message.clone());
-                std::io::Error::other(message)
-            }
-        })
-    })
-    .map_err(|e| match failure.take() {
-        Some(message) => CliError::usage(message),
-        None => CliError::failed(e.to_string()),
+    let mut title = id.to_string();
+    for (list, n) in [
+        (cagerank::id::List::All, numbers.number),
+        (cagerank::id::List::Ipr, numbers.ipr_number),
+    ] {
+        if let Some(n) = n.filter(|_| list != id.list) {
+            title.push_str(&format!(
+                " = {}",
+                cagerank::id::IsomerId::new(id.atoms, list, n)
+            ));
+        }
+    }
+    let title = format!("{title}  spiral {spiral}");
+    let mut svg = Vec::new();
+    draw::schlegel_svg(&mut svg, &cage, &automorphisms, &title, options).map_err(|e| match e {
+        draw::DrawError::Io(io) => CliError::failed(io.to_string()),
+        other => CliError::usage(other.to_string()),
     })?;
+    let svg = String::from_utf8(svg)
+        .map_err(|_| CliError::failed("the drawing is not UTF-8 (internal inconsistency)"))?;
+    let rendered = render::render(&svg, format).map_err(|e| CliError::failed(e.to_string()))?;
+    write_atomic(&args.output, |w| w.write_all(&rendered.bytes))
+        .map_err(|e| CliError::failed(e.to_string()))?;
     println!("{}", args.output.display());
+    if rendered.text_dropped {
+        eprintln!(
+            "cagerank: warning: no fonts found on this system, so the picture has no text (title, \
+             legend, labels); install a font package (e.g. fonts-dejavu-core) or write .svg"
+        );
+    }
     eprintln!("{CAUTION}");
     Ok(())
 }

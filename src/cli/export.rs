@@ -1,58 +1,83 @@
-//! `cagerank export`: write relaxed geometries of a shortlist as XYZ, SDF and JSON, with a
-//! multi-structure SDF and `manifest.csv`.
+//! `cagerank export`: write relaxed geometries of a shortlist as XYZ, SDF, JSON and input decks
+//! for quantum-chemistry codes, with a multi-structure SDF and `manifest.csv`.
 //!
-//! The shortlist is either explicit IDs, the top K of a catalogue query (`--catalogue`), or —
-//! without a catalogue — the top K after enumerating and scoring the whole size here. The
-//! science (scores, geometry, file formats) lives in the library.
+//! The shortlist is either explicit IDs, the top K of a catalogue (`--catalogue`, or the default
+//! catalogue when it holds the list), or — without one — the top K after enumerating and scoring
+//! the whole size here. Every file is named by an ID that says its list (`C84_IPR-23.xyz`), and
+//! no file is replaced unless `--overwrite` says so. The science (numbers, scores, geometry,
+//! file formats) lives in the library.
 
 use super::CliError;
 use cagerank::cage::FaceSet;
 use cagerank::catalogue::query::{query, Filter, Query};
+use cagerank::catalogue::{self, data_file_name};
 use cagerank::enumerate::{self, Spec};
-use cagerank::export::{self, Entry, Format, Numbers, CAUTION};
+use cagerank::export::{self, deck, Entry, Format, Numbers, WriteOptions, CAUTION};
+use cagerank::id::{IdError, IsomerId, List};
+use cagerank::identify::numbers::{self, Located};
 use cagerank::score::{self, rank, Scored};
 use cagerank::spiral::Spiral;
-use std::path::PathBuf;
+use std::path::{Path, PathBuf};
 
 /// Export relaxed 3D geometries (screening heuristics; geometries are starting points only).
 #[derive(clap::Args, Debug)]
 pub struct Args {
-    /// Catalogue directory to take the top K from (default: enumerate and score here).
+    /// Catalogue directory to take the top K and isomer numbers from (default: the default
+    /// catalogue when it holds the list, else enumerate and score here).
     #[arg(long, value_name = "DIR")]
     pub catalogue: Option<PathBuf>,
     /// Cage size (number of carbon atoms); needed with --top.
     #[arg(long, value_name = "N")]
     pub atoms: Option<u64>,
-    /// Use the isolated-pentagon list: IDs and the top K refer to IPR isomers.
+    /// Use the isolated-pentagon list: bare IDs and the top K refer to IPR isomers.
     #[arg(long)]
     pub ipr: bool,
-    /// Export the K best-ranked isomers of the size.
+    /// Export the K best-ranked isomers of the size (K >= 1).
     #[arg(long, value_name = "K", conflicts_with = "ids")]
     pub top: Option<usize>,
-    /// Export these isomers, e.g. C84:22,C84:23 (numbers in the IPR list with --ipr).
+    /// Export these isomers, e.g. C84:IPR-22,C84:IPR-23 or C84:all-51591; a bare C84:23 is read
+    /// in the IPR list with --ipr, else in the complete list.
     #[arg(long, value_name = "IDS")]
     pub ids: Option<String>,
     #[command(flatten)]
     pub charge: super::ChargeArg,
-    /// Comma-separated formats: xyz, sdf, json.
+    /// Comma-separated formats: xyz, sdf, json, and input decks for orca, gaussian, xtb
+    /// (xcontrol + run script, with the XYZ file), cp2k.
     #[arg(long, default_value = "xyz,sdf,json", value_name = "LIST")]
     pub format: String,
+    /// Method for the one input deck asked for: ORCA keywords after `!` (default
+    /// "r2SCAN-3c Opt"), a Gaussian route after `#` (default "B3LYP/6-31G(d)
+    /// EmpiricalDispersion=GD3BJ Opt"), xtb options (default "--gfn 2 --opt"), or for CP2K
+    /// functional, basis set and pseudopotential (default "PBE DZVP-MOLOPT-SR-GTH GTH-PBE-q4").
+    #[arg(long, value_name = "TEXT")]
+    pub method: Option<String>,
+    /// Replace files that already exist in the output directory (otherwise nothing is written).
+    #[arg(long)]
+    pub overwrite: bool,
     /// Output directory (created if missing).
     #[arg(long, value_name = "DIR")]
     pub out: PathBuf,
 }
 
 /// One isomer to export: its ID, canonical spiral and list numbers.
-type Pick = (String, Spiral, Numbers);
+type Pick = (IsomerId, Spiral, Numbers);
 
 pub fn run(args: Args) -> Result<(), CliError> {
     let formats = Format::parse_list(&args.format).map_err(|e| CliError::usage(e.to_string()))?;
+    let method = method(&args, &formats)?;
     let picks = shortlist(&args)?;
+    let stems: Vec<String> = picks.iter().map(|p| p.0.file_stem()).collect();
+    export::check_targets(
+        &export::planned_files(&stems, &formats),
+        &args.out,
+        args.overwrite,
+    )
+    .map_err(|e| CliError::usage(e.to_string()))?;
     std::fs::create_dir_all(&args.out)
         .map_err(|e| CliError::failed(format!("cannot create {}: {e}", args.out.display())))?;
     let mut entries: Vec<Entry> = Vec::with_capacity(picks.len());
     for (id, spiral, numbers) in &picks {
-        let entry = export::prepare(id, spiral, *numbers, args.charge.charge)
+        let entry = export::prepare(*id, spiral, *numbers, args.charge.charge)
             .map_err(|e| CliError::failed(e.to_string()))?;
         if !entry.geometry.converged {
             eprintln!(
@@ -62,8 +87,17 @@ pub fn run(args: Args) -> Result<(), CliError> {
         }
         entries.push(entry);
     }
-    let written = export::write_all(&entries, &formats, &args.out)
-        .map_err(|e| CliError::failed(e.to_string()))?;
+    let options = WriteOptions {
+        overwrite: args.overwrite,
+        method,
+    };
+    let written =
+        export::write_all(&entries, &formats, &args.out, &options).map_err(|e| match e {
+            export::ExportError::Exists { .. }
+            | export::ExportError::SameFile { .. }
+            | export::ExportError::ForeignManifest { .. } => CliError::usage(e.to_string()),
+            _ => CliError::failed(e.to_string()),
+        })?;
     for path in &written {
         println!("{}", path.display());
     }
@@ -71,104 +105,210 @@ pub fn run(args: Args) -> Result<(), CliError> {
     Ok(())
 }
 
-fn shortlist(args: &Args) -> Result<Vec<Pick>, CliError> {
-    match (&args.ids, args.top) {
-        (Some(ids), None) => by_ids(ids, args),
-        (None, Some(k)) => {
-            let atoms = args
-                .atoms
-                .ok_or_else(|| CliError::usage("--top needs --atoms N"))?;
-            match &args.catalogue {
-                Some(dir) => from_catalogue(dir, atoms, k, args.ipr),
-                None => by_enumeration(atoms, k, args.ipr),
-            }
-        }
+/// The checked `--method`, which needs exactly one deck format to apply to.
+fn method(args: &Args, formats: &[Format]) -> Result<Option<String>, CliError> {
+    let Some(text) = &args.method else {
+        return Ok(None);
+    };
+    match Format::codes(formats).as_slice() {
+        [code] => deck::check_method(*code, text)
+            .map(Some)
+            .map_err(CliError::usage),
+        [] => Err(CliError::usage(
+            "--method sets the method of an input deck; add one of orca, gaussian, xtb, cp2k to --format",
+        )),
         _ => Err(CliError::usage(
-            "say what to export: --top K (with --atoms N) or --ids C84:22,C84:23",
+            "--method applies to one input deck; export one of orca, gaussian, xtb, cp2k per run",
         )),
     }
 }
 
-/// Splits `C84:23` (or `84:23`) into the atom count and the number.
-pub fn parse_id(text: &str) -> Result<(u64, u64), CliError> {
-    let bad = || {
-        CliError::usage(format!(
-            "'{text}' is not an isomer ID; write the size and number like C84:23"
-        ))
-    };
-    let body = text.trim().trim_start_matches(['C', 'c']);
-    let (size, number) = body.split_once(':').ok_or_else(bad)?;
-    let atoms: u64 = size.trim().parse().map_err(|_| bad())?;
-    let number: u64 = number.trim().parse().map_err(|_| bad())?;
-    if number == 0 {
-        return Err(bad());
+fn shortlist(args: &Args) -> Result<Vec<Pick>, CliError> {
+    match (&args.ids, args.top) {
+        (Some(ids), None) => by_ids(ids, args),
+        (None, Some(0)) => Err(CliError::usage(
+            "--top 0 exports nothing; give K >= 1 (or list isomers with --ids)",
+        )),
+        (None, Some(k)) => {
+            let atoms = args
+                .atoms
+                .ok_or_else(|| CliError::usage("--top needs --atoms N"))?;
+            let spec =
+                Spec::fullerene(atoms, args.ipr).map_err(|e| CliError::usage(e.to_string()))?;
+            match catalogue_for(args, &spec) {
+                Some(dir) => from_catalogue(&dir, &spec, k),
+                None => by_enumeration(&spec, k),
+            }
+        }
+        _ => Err(CliError::usage(
+            "say what to export: --top K (with --atoms N) or --ids C84:IPR-22,C84:IPR-23",
+        )),
     }
-    Ok((atoms, number))
 }
 
-/// Finds isomer `number` of C`atoms` in the complete list (or the IPR list with `ipr`).
-pub fn find(atoms: u64, number: u64, ipr: bool) -> Result<(Spiral, Numbers), CliError> {
-    let spec = Spec::fullerene(atoms, ipr).map_err(|e| CliError::usage(e.to_string()))?;
-    let list = if ipr { "IPR list" } else { "complete list" };
-    let iso = enumerate::find_by_number(&spec, number).ok_or_else(|| {
-        CliError::usage(format!(
-            "C{atoms} has no isomer {number} in the {list}; numbers start at 1"
-        ))
-    })?;
-    Ok((
-        iso.spiral,
-        Numbers {
-            number: iso.number,
-            ipr_number: iso.ipr_number,
-        },
-    ))
+/// The catalogue to read: `--catalogue`, or the default one if it holds this list.
+fn catalogue_for(args: &Args, spec: &Spec) -> Option<PathBuf> {
+    if let Some(dir) = &args.catalogue {
+        return Some(dir.clone());
+    }
+    let dir = catalogue::default_dir();
+    let file = dir.join(data_file_name(FaceSet::Fullerene, spec.atoms, spec.ipr, 0));
+    file.is_file().then(|| {
+        eprintln!(
+            "cagerank: note: taking the top K from the catalogue in {}",
+            dir.display()
+        );
+        dir
+    })
+}
+
+/// The catalogue used to look up numbers: `--catalogue`, else the default directory if present.
+fn numbers_dir(args: &Args) -> Option<PathBuf> {
+    args.catalogue
+        .clone()
+        .or_else(|| Some(catalogue::default_dir()).filter(|d| d.is_dir()))
+}
+
+/// Reads one `--ids` entry: an ID naming its list is taken as written, a bare one is in the
+/// IPR list with `--ipr` and in the complete list without; an ID naming the complete list
+/// together with `--ipr` is a contradiction and refused.
+pub fn parse_id(text: &str, ipr: bool) -> Result<IsomerId, CliError> {
+    let parsed = if ipr {
+        IsomerId::parse(text, Some(List::Ipr))
+    } else {
+        match IsomerId::parse(text, None) {
+            Err(IdError::NoList { .. }) => IsomerId::parse(text, Some(List::All)),
+            other => other,
+        }
+    };
+    parsed.map_err(|e| CliError::usage(e.to_string()))
+}
+
+/// Finds the isomer named by `id` (catalogue first, else a search up to it) with its number in
+/// the other list too (searched for only with `both`; otherwise only if a catalogue has it).
+pub fn locate(
+    id: IsomerId,
+    catalogue: Option<&Path>,
+    both: bool,
+) -> Result<(Spiral, Numbers), CliError> {
+    let mut bar = LazyBar::new(format!("finding {id}"));
+    let mut progress = |done, total| bar.update(done, total);
+    let found = if both {
+        numbers::locate(id, catalogue, &mut progress)
+    } else {
+        numbers::locate_in_list(id, catalogue, &mut progress)
+    };
+    bar.finish();
+    match found.map_err(|e| match e {
+        numbers::NumbersError::Size(e) => CliError::usage(e.to_string()),
+        other => CliError::failed(other.to_string()),
+    })? {
+        Some(Located { spiral, numbers }) => Ok((
+            spiral,
+            Numbers {
+                number: numbers.complete.listed(),
+                ipr_number: numbers.ipr.listed(),
+            },
+        )),
+        None => Err(CliError::usage(format!(
+            "C{} has no isomer {} in the {}; numbers start at 1 and end at the count that \
+             `cagerank enumerate --count-only {}{}` reports",
+            id.atoms,
+            id.number,
+            id.list.words(),
+            id.atoms,
+            if id.list.is_ipr() { " --ipr" } else { "" }
+        ))),
+    }
+}
+
+/// A progress bar that appears only once a search reports progress, so a catalogue lookup
+/// that takes milliseconds draws nothing (bars are hidden off a terminal).
+pub struct LazyBar {
+    what: String,
+    bar: Option<indicatif::ProgressBar>,
+}
+
+impl LazyBar {
+    pub fn new(what: String) -> LazyBar {
+        LazyBar { what, bar: None }
+    }
+
+    /// Called with (units done, units to run).
+    pub fn update(&mut self, done: usize, total: usize) {
+        if self.bar.is_none() {
+            // The first report may already be some way in: start the rate and ETA from there.
+            let bar = super::progress::bar(total as u64, &self.what, false);
+            bar.set_position(done as u64);
+            bar.reset_eta();
+            self.bar = Some(bar);
+        }
+        if let Some(bar) = &self.bar {
+            bar.set_length(total as u64);
+            bar.set_position(done as u64);
+        }
+    }
+
+    pub fn finish(self) {
+        if let Some(bar) = self.bar {
+            bar.finish_and_clear();
+        }
+    }
 }
 
 fn by_ids(ids: &str, args: &Args) -> Result<Vec<Pick>, CliError> {
-    let mut out = Vec::new();
-    for id in ids.split(',').map(str::trim).filter(|s| !s.is_empty()) {
-        let (atoms, number) = parse_id(id)?;
-        if args.atoms.is_some_and(|a| a != atoms) {
+    let mut asked: Vec<IsomerId> = Vec::new();
+    for text in ids.split(',').map(str::trim).filter(|s| !s.is_empty()) {
+        let id = parse_id(text, args.ipr)?;
+        if args.atoms.is_some_and(|a| a != u64::from(id.atoms)) {
             return Err(CliError::usage(format!(
                 "{id} does not have the {} atoms given by --atoms",
-                atoms
+                args.atoms.unwrap_or_default()
             )));
         }
-        let (spiral, numbers) = find(atoms, number, args.ipr)?;
-        out.push((format!("C{atoms}:{number}"), spiral, numbers));
+        if asked.contains(&id) {
+            eprintln!("cagerank: note: {id} is listed more than once; exported once");
+            continue;
+        }
+        asked.push(id);
     }
-    if out.is_empty() {
+    if asked.is_empty() {
         return Err(CliError::usage(
-            "--ids is empty; list IDs like C84:22,C84:23",
+            "--ids is empty; list IDs like C84:IPR-22,C84:IPR-23",
         ));
+    }
+    let dir = numbers_dir(args);
+    let mut out: Vec<Pick> = Vec::new();
+    for id in asked {
+        let (spiral, numbers) = locate(id, dir.as_deref(), true)?;
+        if let Some(first) = out.iter().find(|p| p.1 == spiral) {
+            eprintln!(
+                "cagerank: note: {id} is the same isomer as {}; exported once, as {}",
+                first.0, first.0
+            );
+            continue;
+        }
+        out.push((id, spiral, numbers));
     }
     Ok(out)
 }
 
-fn id_of(atoms: u64, numbers: Numbers, ipr: bool, spiral: &Spiral) -> String {
-    let n = if ipr {
+/// The ID of a listed isomer in the list the user asked for.
+fn id_in(spec: &Spec, numbers: Numbers) -> Option<IsomerId> {
+    let list = List::from_ipr(spec.ipr);
+    let n = if spec.ipr {
         numbers.ipr_number
     } else {
         numbers.number
     };
-    match n {
-        Some(n) => format!("C{atoms}:{n}"),
-        None => format!("C{atoms}-spiral-{}", spiral.to_string().replace(' ', "-")),
-    }
+    Some(IsomerId::new(spec.atoms, list, n?))
 }
 
-fn from_catalogue(
-    dir: &std::path::Path,
-    atoms: u64,
-    k: usize,
-    ipr: bool,
-) -> Result<Vec<Pick>, CliError> {
-    let atoms32 =
-        u32::try_from(atoms).map_err(|_| CliError::usage(format!("{atoms} atoms is too many")))?;
+fn from_catalogue(dir: &Path, spec: &Spec, k: usize) -> Result<Vec<Pick>, CliError> {
     let q = Query {
-        atoms: atoms32,
+        atoms: spec.atoms,
         face_set: FaceSet::Fullerene,
-        ipr,
+        ipr: spec.ipr,
         charge: 0,
         filter: Filter::default(),
         rank_by: Vec::new(),
@@ -185,24 +325,43 @@ fn from_catalogue(
                 number: r.number,
                 ipr_number: r.ipr_number,
             };
-            Ok((id_of(atoms, numbers, ipr, &spiral), spiral, numbers))
+            let id = id_in(spec, numbers).ok_or_else(|| {
+                CliError::usage(format!(
+                    "the catalogue in {} holds C{} only as shards, whose records have no isomer \
+                     numbers; merge the shards first (cagerank merge)",
+                    dir.display(),
+                    spec.atoms
+                ))
+            })?;
+            Ok((id, spiral, numbers))
         })
         .collect()
 }
 
 /// Enumerates the size, scores every isomer and keeps the K best by the default rank.
-fn by_enumeration(atoms: u64, k: usize, ipr: bool) -> Result<Vec<Pick>, CliError> {
-    let spec = Spec::fullerene(atoms, ipr).map_err(|e| CliError::usage(e.to_string()))?;
+fn by_enumeration(spec: &Spec, k: usize) -> Result<Vec<Pick>, CliError> {
     let mut isomers = Vec::new();
+    let bar = super::progress::bar(0, &format!("C{} enumerate", spec.atoms), false);
     enumerate::enumerate(
-        &spec,
+        spec,
         &enumerate::Options::default(),
-        |_, _| {},
+        |done, total| {
+            bar.set_length(total as u64);
+            bar.set_position(done as u64);
+        },
         |iso| isomers.push(iso),
     )
     .map_err(|e| CliError::failed(e.to_string()))?;
+    bar.finish_and_clear();
     let spirals: Vec<Spiral> = isomers.iter().map(|i| i.spiral.clone()).collect();
-    let described = score::describe_all(&spirals, 0);
+    // Scored in slices so that a bar can show progress (C84 alone has 51,592 isomers).
+    let mut bar = LazyBar::new(format!("C{} score", spec.atoms));
+    let mut described = Vec::with_capacity(spirals.len());
+    for slice in spirals.chunks(4096) {
+        described.extend(score::describe_all(slice, 0));
+        bar.update(described.len(), spirals.len());
+    }
+    bar.finish();
     let mut scored = Vec::with_capacity(isomers.len());
     for (iso, d) in isomers.iter().zip(described) {
         let d = d.map_err(|e| CliError::failed(e.to_string()))?;
@@ -211,7 +370,7 @@ fn by_enumeration(atoms: u64, k: usize, ipr: bool) -> Result<Vec<Pick>, CliError
     rank::rank(&mut scored, &rank::default_keys());
     let mut order: Vec<usize> = (0..scored.len()).collect();
     order.sort_by_key(|&i| scored[i].rank);
-    Ok(order
+    order
         .into_iter()
         .take(k)
         .map(|i| {
@@ -219,8 +378,10 @@ fn by_enumeration(atoms: u64, k: usize, ipr: bool) -> Result<Vec<Pick>, CliError
                 number: isomers[i].number,
                 ipr_number: isomers[i].ipr_number,
             };
-            let spiral = isomers[i].spiral.clone();
-            (id_of(atoms, numbers, ipr, &spiral), spiral, numbers)
+            let id = id_in(spec, numbers).ok_or_else(|| {
+                CliError::failed("an enumerated isomer has no number (internal inconsistency)")
+            })?;
+            Ok((id, isomers[i].spiral.clone(), numbers))
         })
-        .collect())
+        .collect()
 }

@@ -4,11 +4,14 @@
 //! numbers (`identify::numbers`) and the descriptors (`score`), and prints a block (or one JSON
 //! line) per structure. The science lives in the library.
 
+use super::export::LazyBar;
 use super::output::{write_line, Out};
 use super::show::{nmr_text, symmetry_text};
 use super::CliError;
 use cagerank::automorphism;
 use cagerank::cage::Cage;
+use cagerank::catalogue;
+use cagerank::id::{IsomerId, List};
 use cagerank::identify::numbers::{self, Number, Numbers};
 use cagerank::identify::{self, Format, Identity, Options, Structure};
 use cagerank::score::{self, huckel, kekule, symmetry, Descriptors};
@@ -38,7 +41,8 @@ pub struct Args {
     /// Elements to drop before bond perception, comma-separated (e.g. Sc,N for Sc3N@C80).
     #[arg(long, value_name = "ELEMENTS")]
     pub ignore_elements: Option<String>,
-    /// Catalogue directory to read isomer numbers from (needed for large cages).
+    /// Catalogue directory to read isomer numbers from (default: $CAGERANK_CATALOGUE or
+    /// ./catalogues when present; needed for the complete list beyond C84).
     #[arg(long, value_name = "DIR")]
     pub catalogue: Option<PathBuf>,
     #[command(flatten)]
@@ -182,14 +186,19 @@ fn report(out: &mut Out, label: &Label, id: &Identity, args: &Args) -> Result<()
     let numbers = if args.no_numbers {
         None
     } else {
-        Some(
-            numbers::numbers(
-                &canonical.spiral,
-                id.cage.is_ipr(),
-                args.catalogue.as_deref(),
-            )
-            .map_err(|e| CliError::failed(e.to_string()))?,
-        )
+        let dir = args
+            .catalogue
+            .clone()
+            .or_else(|| Some(catalogue::default_dir()).filter(|d| d.is_dir()));
+        let mut bar = LazyBar::new(format!("numbering C{}", id.cage.atoms()));
+        let found = numbers::numbers_with_progress(
+            &canonical.spiral,
+            id.cage.is_ipr(),
+            dir.as_deref(),
+            &mut |done, total| bar.update(done, total),
+        );
+        bar.finish();
+        Some(found.map_err(|e| CliError::failed(e.to_string()))?)
     };
     let d = score::describe(&id.cage, canonical, args.charge.charge)
         .map_err(|e| CliError::usage(e.to_string()))?;
@@ -197,6 +206,15 @@ fn report(out: &mut Out, label: &Label, id: &Identity, args: &Args) -> Result<()
         let mut m = label.json();
         m.insert("ignored_atoms".into(), json!(id.ignored));
         m.insert("atoms".into(), json!(id.cage.atoms()));
+        let ids: Vec<String> = numbers
+            .map(|n| {
+                n.ids(id.cage.atoms())
+                    .iter()
+                    .map(|i| i.to_string())
+                    .collect()
+            })
+            .unwrap_or_default();
+        m.insert("ids".into(), json!(ids));
         m.insert(
             "number".into(),
             json!(numbers.and_then(|n| n.complete.listed())),
@@ -236,19 +254,22 @@ fn report(out: &mut Out, label: &Label, id: &Identity, args: &Args) -> Result<()
     Ok(())
 }
 
+/// Both IDs of the cage, complete list first: `C84:all-51591 = C84:IPR-23`; a number not
+/// computed shows as `?`.
 fn id_text(atoms: usize, numbers: Option<Numbers>) -> String {
     let Some(n) = numbers else {
         return format!("C{atoms}");
     };
-    let complete = n
-        .complete
-        .listed()
-        .map_or("?".to_string(), |k| k.to_string());
-    let ipr = n
-        .ipr
-        .listed()
-        .map_or(String::new(), |k| format!(" (IPR list: {k})"));
-    format!("C{atoms}:{complete}{ipr}")
+    let mut parts = vec![match n.complete {
+        Number::Listed(k) => IsomerId::new(atoms as u32, List::All, k).to_string(),
+        _ => format!("C{atoms}:all-?"),
+    }];
+    match n.ipr {
+        Number::Listed(k) => parts.push(IsomerId::new(atoms as u32, List::Ipr, k).to_string()),
+        Number::NotComputed { .. } => parts.push(format!("C{atoms}:IPR-?")),
+        Number::NotListed => {}
+    }
+    parts.join(" = ")
 }
 
 /// Why a number is missing and how to get it.

@@ -5,6 +5,7 @@
 //! Layout lives in [`schlegel`], SVG text in [`svg`]; values come from `score::bonds`. Finding
 //! the cage for an ID and writing the file are left to the caller (`cli`).
 
+pub mod render;
 pub mod schlegel;
 pub mod svg;
 

@@ -1,5 +1,6 @@
 //! SVG output of a Schlegel diagram: faces as filled paths, bonds as lines, optional atom
-//! labels, a legend, the isomer ID and the screening caution (SVG 1.1, W3C Recommendation 2011).
+//! labels, a legend and the isomer ID (SVG 1.1, W3C Recommendation 2011). The screening caution
+//! travels as the document's `<desc>` (not drawn: the command prints it once on stderr).
 //!
 //! Layout (where atoms go) comes from `schlegel.rs`; the values used for colouring come from
 //! `score::bonds`. Every face is one `<path class="face">`; the outer face, which in a Schlegel
@@ -11,7 +12,7 @@ use std::io::{self, Write};
 /// Drawing area in SVG user units (the legend and captions sit below it).
 const SIZE: f64 = 640.0;
 const MARGIN: f64 = 40.0;
-const CAPTION_HEIGHT: f64 = 135.0;
+const CAPTION_HEIGHT: f64 = 70.0;
 
 /// What a colour encodes.
 #[derive(Debug, Clone, PartialEq)]
@@ -122,6 +123,7 @@ pub fn write(w: &mut impl Write, p: &Picture<'_>) -> io::Result<()> {
         r#"<svg xmlns="http://www.w3.org/2000/svg" width="{SIZE}" height="{height}" viewBox="0 0 {SIZE} {height}" font-family="sans-serif">"#
     )?;
     writeln!(w, "<title>{}</title>", escape(p.title))?;
+    writeln!(w, "<desc>{}</desc>", escape(p.caution))?;
     writeln!(
         w,
         r##"<rect x="0" y="0" width="{SIZE}" height="{height}" fill="#ffffff"/>"##
@@ -232,16 +234,6 @@ fn write_captions(w: &mut impl Write, p: &Picture<'_>) -> io::Result<()> {
             range(v),
         )?,
     }
-    writeln!(w, "</g>")?;
-    writeln!(w, r##"<g id="caution" font-size="10" fill="#4b5563">"##)?;
-    for (i, line) in wrap(p.caution, 110).iter().enumerate() {
-        writeln!(
-            w,
-            r#"<text x="16" y="{:.1}">{}</text>"#,
-            y0 + 76.0 + 13.0 * i as f64,
-            escape(line)
-        )?;
-    }
     writeln!(w, "</g>")
 }
 
@@ -277,21 +269,4 @@ fn legend_scale(w: &mut impl Write, y: f64, label: &str, (lo, hi): (f64, f64)) -
         y + 13.0,
         escape(label)
     )
-}
-
-/// Greedy word wrap at `width` characters.
-fn wrap(text: &str, width: usize) -> Vec<String> {
-    let mut lines = vec![String::new()];
-    for word in text.split_whitespace() {
-        let last = lines.last_mut().expect("invariant: lines starts non-empty");
-        if !last.is_empty() && last.len() + 1 + word.len() > width {
-            lines.push(word.to_string());
-        } else {
-            if !last.is_empty() {
-                last.push(' ');
-            }
-            last.push_str(word);
-        }
-    }
-    lines
 }

@@ -31,7 +31,10 @@
 //! that share a state are the same start. Each such sequence is therefore wound to its leaf and
 //! rejected there, which is why hexagon starts cost several times more (docs/performance.md).
 
+mod lookup;
 mod store;
+
+pub use lookup::{isomer_numbered, number_of, number_of_from, published_count, End};
 
 use crate::cage::FaceSet;
 use crate::spiral::{
@@ -804,30 +807,15 @@ pub fn count(spec: &Spec, threads: usize) -> Result<u64, EnumerateError> {
     Ok(pool.install(|| all.par_iter().map(|u| run_unit(spec, u).len() as u64).sum()))
 }
 
-/// The isomer with this number: in the complete list, or in the IPR list when `spec.ipr`.
+/// The isomer with this number: in the complete list, or in the IPR list when `spec.ipr`. Runs
+/// only the units up to the one holding it (see [`isomer_numbered`]).
 pub fn find_by_number(spec: &Spec, number: u64) -> Option<Isomer> {
-    let mut hit = None;
-    let opts = Options::default();
-    let _ = enumerate_until(
-        spec,
-        &opts,
-        |_, _| {},
-        |iso| {
-            let n = if spec.ipr { iso.ipr_number } else { iso.number };
-            if n == Some(number) {
-                hit = Some(iso);
-                ControlFlow::Break(())
-            } else {
-                ControlFlow::Continue(())
-            }
-        },
-    );
-    hit
+    isomer_numbered(spec, number, |_, _| {})
 }
 
-/// Complete-list and IPR-list numbers of a canonical fullerene spiral (by enumerating its size;
-/// the complete list of C70 takes about half a minute, C100 far longer). `(None, None)` if the
-/// spiral is not canonical or not a fullerene.
+/// Complete-list and IPR-list numbers of a canonical fullerene spiral, found by running only the
+/// units on one side of it (see [`number_of`]). `(None, None)` if the spiral is not canonical or
+/// not a fullerene.
 pub fn numbers_of(spiral: &Spiral) -> (Option<u64>, Option<u64>) {
     let number = |ipr| list_number_of(spiral, ipr).ok().flatten();
     (number(false), number(true))
@@ -839,23 +827,15 @@ pub fn list_number_of(spiral: &Spiral, ipr: bool) -> Result<Option<u64>, Enumera
     let Ok(spec) = Spec::fullerene(spiral.atoms() as u64, ipr) else {
         return Ok(None);
     };
-    let mut hit = None;
-    enumerate_until(
-        &spec,
-        &Options::default(),
-        |_, _| {},
+    Ok(number_of(&spec, spiral, |_, _| {}).and_then(
         |iso| {
-            if iso.spiral == *spiral {
-                hit = if ipr { iso.ipr_number } else { iso.number };
-                ControlFlow::Break(())
-            } else if iso.spiral > *spiral {
-                ControlFlow::Break(())
+            if ipr {
+                iso.ipr_number
             } else {
-                ControlFlow::Continue(())
+                iso.number
             }
         },
-    )?;
-    Ok(hit)
+    ))
 }
 
 /// Every canonical spiral of the fullerenes with `atoms` carbons, on one thread (unit tests of

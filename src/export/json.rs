@@ -2,7 +2,7 @@
 //! result and the screening caution, as one pretty-printed object per file.
 //!
 //! The record is `score::FullRecord`, exactly what `show --json` prints; this module only adds
-//! the ID, charge, geometry block and caution to it.
+//! the ID with its list and both numbers, charge, multiplicity, geometry block and caution to it.
 
 use super::{Entry, CAUTION};
 use serde_json::{json, Value};
@@ -18,12 +18,16 @@ pub fn record(entry: &Entry) -> Value {
         .collect();
     let mut value = serde_json::to_value(&entry.record).unwrap_or(Value::Null);
     let extra = json!({
-        "id": entry.id,
+        "id": entry.id.to_string(),
+        "list": entry.id.list.tag(),
+        "number": entry.numbers.number,
+        "ipr_number": entry.numbers.ipr_number,
         "charge": entry.charge,
+        "multiplicity": entry.multiplicity(),
         "geometry": {
             "units": "angstrom",
             "coordinates": g.coords,
-                        "kekule_double_bonds": double_bonds,
+            "kekule_double_bonds": double_bonds,
             "force_field": "harmonic bonds from Pauling bond orders + ring-angle bending (see geometry::forcefield)",
             "energy_ev": g.energy_ev,
             "max_force_ev_per_angstrom": g.max_force_ev_per_angstrom,

@@ -1,18 +1,37 @@
-//! `manifest.csv`: one row per exported isomer with its ID, spiral, point group, the scalar
-//! descriptors and the files written for it (RFC 4180 quoting).
+//! `manifest.csv`: one row per exported isomer with its ID, list, both list numbers, spiral,
+//! point group, the scalar descriptors and the files written for it (RFC 4180 quoting).
 //!
-//! Columns are fixed so that manifests of different runs can be concatenated.
+//! Columns are fixed so that manifests of different runs can be concatenated. A number that
+//! does not exist (a non-IPR cage has no IPR number) is an empty cell, so numeric columns read
+//! as numbers with missing values (pandas, R).
 
 use super::{scalar_fields, Entry};
 use std::io::{self, Write};
 
+/// Columns before the descriptors (and `files`, the last column).
+const FIXED: [&str; 7] = [
+    "id",
+    "list",
+    "number",
+    "ipr_number",
+    "spiral",
+    "point_group",
+    "files",
+];
+
+/// How every manifest this version writes begins (the fixed columns before the descriptors).
+pub const HEADER_START: &str = "id,list,number,ipr_number,spiral,point_group,";
+
 /// Writes the header and one row per entry; `files[i]` lists the file names of entry i.
 pub fn write(w: &mut impl Write, entries: &[Entry], files: &[Vec<String>]) -> io::Result<()> {
     let Some(first) = entries.first() else {
-        return writeln!(w, "id,spiral,point_group,files");
+        return writeln!(w, "{}", FIXED.join(","));
     };
     let names: Vec<String> = scalar_fields(first).into_iter().map(|(k, _)| k).collect();
-    let mut header = vec!["id".to_string(), "spiral".into(), "point_group".into()];
+    let mut header: Vec<String> = FIXED[..FIXED.len() - 1]
+        .iter()
+        .map(|s| s.to_string())
+        .collect();
     header.extend(names.iter().cloned());
     header.push("files".into());
     writeln!(
@@ -25,8 +44,12 @@ pub fn write(w: &mut impl Write, entries: &[Entry], files: &[Vec<String>]) -> io
             .join(",")
     )?;
     for (entry, files) in entries.iter().zip(files) {
+        let number = |n: Option<u64>| n.map_or(String::new(), |n| n.to_string());
         let mut row = vec![
-            entry.id.clone(),
+            entry.id.to_string(),
+            entry.id.list.tag().to_string(),
+            number(entry.numbers.number),
+            number(entry.numbers.ipr_number),
             entry.spiral.to_string(),
             entry.record.descriptors.point_group.name(),
         ];

@@ -1,10 +1,14 @@
-//! Shortlist export for quantum chemistry: relaxed geometries written as XYZ, SDF (MDL V2000)
-//! and JSON, one file per isomer named by its ID, plus a multi-structure SDF and `manifest.csv`.
+//! Shortlist export for quantum chemistry: relaxed geometries written as XYZ, SDF (MDL V2000),
+//! JSON and input decks for ORCA, Gaussian, xTB and CP2K, one file per isomer named by its ID
+//! (`C84_IPR-23.xyz`: the ID always says its list, see `id`), plus a multi-structure SDF and
+//! `manifest.csv`.
 //!
 //! Writers take `impl Write`; [`write_atomic`] puts a file in place by temp file + fsync +
-//! rename, so a crash never leaves a half-written file under the final name. Choosing *which*
-//! isomers to export (catalogue query or enumeration and ranking) is the caller's business.
+//! rename, so a crash never leaves a half-written file under the final name, and [`write_all`]
+//! refuses to replace an existing file unless told to. Choosing *which* isomers to export
+//! (catalogue query or enumeration and ranking) is the caller's business.
 
+pub mod deck;
 pub mod json;
 pub mod manifest;
 pub mod sdf;
@@ -12,8 +16,11 @@ pub mod xyz;
 
 use crate::cage::{Cage, EdgeId};
 use crate::geometry::{self, Geometry, GeometryError};
+use crate::id::IsomerId;
 use crate::score::{self, FullRecord, ScoreError};
 use crate::spiral::Spiral;
+use deck::Code;
+use std::collections::BTreeSet;
 use std::fmt;
 use std::fs::{self, File};
 use std::io::{self, BufWriter, Write};
@@ -28,8 +35,10 @@ nanomaterials.";
 /// One isomer ready to export: its cage, descriptors, geometry and one Kekulé structure.
 #[derive(Debug, Clone)]
 pub struct Entry {
-    /// The ID as users write it, e.g. `C84:23`.
-    pub id: String,
+    /// The ID the isomer was asked for by, e.g. `C84:IPR-23`; it names the files.
+    pub id: IsomerId,
+    /// Its numbers in both lists, where known (an IPR cage has both).
+    pub numbers: Numbers,
     pub spiral: Spiral,
     pub cage: Cage,
     pub charge: i32,
@@ -46,18 +55,15 @@ pub enum Format {
     Xyz,
     Sdf,
     Json,
+    /// An input deck for a quantum-chemistry code.
+    Deck(Code),
 }
 
-impl Format {
-    pub fn extension(self) -> &'static str {
-        match self {
-            Format::Xyz => "xyz",
-            Format::Sdf => "sdf",
-            Format::Json => "json",
-        }
-    }
+/// Every format name `--format` accepts, in the order help lists them.
+pub const FORMAT_NAMES: &str = "xyz, sdf, json, orca, gaussian, xtb, cp2k";
 
-    /// Parses a comma-separated list such as `xyz,sdf`.
+impl Format {
+    /// Parses a comma-separated list such as `xyz,sdf,orca`; repeats are dropped.
     pub fn parse_list(text: &str) -> Result<Vec<Format>, ExportError> {
         let mut out = Vec::new();
         for part in text.split(',').map(str::trim).filter(|p| !p.is_empty()) {
@@ -65,6 +71,10 @@ impl Format {
                 "xyz" => Format::Xyz,
                 "sdf" => Format::Sdf,
                 "json" => Format::Json,
+                "orca" => Format::Deck(Code::Orca),
+                "gaussian" => Format::Deck(Code::Gaussian),
+                "xtb" => Format::Deck(Code::Xtb),
+                "cp2k" => Format::Deck(Code::Cp2k),
                 _ => return Err(ExportError::UnknownFormat(part.to_string())),
             };
             if !out.contains(&f) {
@@ -76,6 +86,17 @@ impl Format {
         }
         Ok(out)
     }
+
+    /// The deck formats among `formats`.
+    pub fn codes(formats: &[Format]) -> Vec<Code> {
+        formats
+            .iter()
+            .filter_map(|f| match f {
+                Format::Deck(c) => Some(*c),
+                _ => None,
+            })
+            .collect()
+    }
 }
 
 /// What can go wrong while preparing or writing an export.
@@ -86,12 +107,24 @@ pub enum ExportError {
     Geometry(GeometryError),
     /// The cage has no perfect matching, so no single/double bond assignment exists.
     NoKekule {
-        id: String,
+        id: IsomerId,
     },
     /// SDF V2000 cannot hold the cage.
     TooLargeForSdf {
-        id: String,
+        id: IsomerId,
         atoms: usize,
+    },
+    /// A file to write is already there and replacing was not asked for.
+    Exists {
+        path: PathBuf,
+    },
+    /// The directory's manifest has other columns than this version writes.
+    ForeignManifest {
+        path: PathBuf,
+    },
+    /// Two entries would write the same file.
+    SameFile {
+        name: String,
     },
     Io {
         path: PathBuf,
@@ -105,7 +138,8 @@ impl fmt::Display for ExportError {
             ExportError::UnknownFormat(s) => {
                 write!(
                     f,
-                    "unknown export format '{s}'; use a comma-separated list of xyz, sdf, json"
+                    "unknown export format '{}'; use a comma-separated list of {FORMAT_NAMES}",
+                    crate::id::printable(s)
                 )
             }
             ExportError::Score(e) => e.fmt(f),
@@ -117,6 +151,20 @@ impl fmt::Display for ExportError {
                 f,
                 "{id} has {atoms} atoms; SDF V2000 holds at most {} — export xyz or json instead",
                 sdf::MAX_ATOMS
+            ),
+            ExportError::Exists { path } => write!(
+                f,
+                "{} already exists; pass --overwrite to replace it, or choose another --out",
+                path.display()
+            ),
+            ExportError::ForeignManifest { path } => write!(
+                f,
+                "{} has other columns than this version writes; choose another --out or move it away",
+                path.display()
+            ),
+            ExportError::SameFile { name } => write!(
+                f,
+                "two isomers would both be written to {name}; list each isomer once"
             ),
             ExportError::Io { path, source } => {
                 write!(
@@ -138,10 +186,10 @@ pub struct Numbers {
     pub ipr_number: Option<u64>,
 }
 
-/// Scores and relaxes the cage of `spiral` for export under the name `id`. Atoms are numbered
+/// Scores and relaxes the cage of `spiral` for export under the ID `id`. Atoms are numbered
 /// as `spiral` winds them, in the geometry and in the record alike.
 pub fn prepare(
-    id: &str,
+    id: IsomerId,
     spiral: &Spiral,
     numbers: Numbers,
     charge: i32,
@@ -150,10 +198,10 @@ pub fn prepare(
     let record = score::full_record(spiral, numbers.number, numbers.ipr_number, charge)
         .map_err(ExportError::Score)?;
     let geometry = geometry::relax(&cage).map_err(ExportError::Geometry)?;
-    let kekule = score::kekule::kekule_structure(&cage)
-        .ok_or_else(|| ExportError::NoKekule { id: id.to_string() })?;
+    let kekule = score::kekule::kekule_structure(&cage).ok_or(ExportError::NoKekule { id })?;
     Ok(Entry {
-        id: id.to_string(),
+        id,
+        numbers,
         spiral: spiral.clone(),
         cage,
         charge,
@@ -163,34 +211,80 @@ pub fn prepare(
     })
 }
 
-/// A file name made from an ID: `C84:23` becomes `C84-23`; anything outside `[A-Za-z0-9._-]`
-/// becomes `-`, and a leading dot is replaced so the file is never hidden or a path.
-pub fn safe_file_stem(id: &str) -> String {
-    let mut stem: String = id
-        .chars()
-        .map(|c| {
-            if c.is_ascii_alphanumeric() || c == '_' || c == '-' || c == '.' {
-                c
-            } else {
-                '-'
-            }
-        })
-        .collect();
-    if stem.is_empty() || stem.starts_with('.') {
-        stem.insert(0, 'x');
+impl Entry {
+    /// The stem every file of this entry shares: `C84_IPR-23`.
+    pub fn stem(&self) -> String {
+        self.id.file_stem()
     }
-    stem
+
+    /// Spin multiplicity written into decks and the XYZ comment (lowest spin state).
+    pub fn multiplicity(&self) -> u32 {
+        deck::multiplicity(self.cage.atoms(), self.charge)
+    }
+
+    /// One line saying what the structure is: ID, other-list ID, point group, charge.
+    pub fn title(&self) -> String {
+        let mut title = self.id.to_string();
+        for other in self.other_ids() {
+            title.push_str(&format!(" = {other}"));
+        }
+        format!(
+            "{title} {} charge {} multiplicity {}, cagerank force-field starting geometry",
+            self.record.descriptors.point_group.name(),
+            self.charge,
+            self.multiplicity()
+        )
+    }
+
+    /// The isomer's IDs in the lists other than the one it was asked by.
+    fn other_ids(&self) -> Vec<IsomerId> {
+        let atoms = self.id.atoms;
+        [
+            (crate::id::List::All, self.numbers.number),
+            (crate::id::List::Ipr, self.numbers.ipr_number),
+        ]
+        .into_iter()
+        .filter_map(|(list, n)| Some(IsomerId::new(atoms, list, n?)))
+        .filter(|other| *other != self.id)
+        .collect()
+    }
 }
 
-/// The one-line comment for XYZ files: ID, point group, charge and the caution.
+/// The comment line of XYZ files, as `key=value` pairs that ASE's extended-XYZ reader accepts
+/// (values with spaces quoted; a number missing from a list is left out, not written as junk):
+/// `id=C84:IPR-23 list=IPR number=51591 ipr_number=23 point_group=D2d charge=0 ...`.
 pub fn comment_line(entry: &Entry) -> String {
-    format!(
-        "{} {} charge={} | {}",
-        entry.id,
-        entry.record.descriptors.point_group.name(),
-        entry.charge,
-        CAUTION
-    )
+    let mut pairs = vec![
+        ("id".to_string(), entry.id.to_string()),
+        ("list".to_string(), entry.id.list.tag().to_string()),
+    ];
+    if let Some(n) = entry.numbers.number {
+        pairs.push(("number".into(), n.to_string()));
+    }
+    if let Some(n) = entry.numbers.ipr_number {
+        pairs.push(("ipr_number".into(), n.to_string()));
+    }
+    pairs.extend([
+        (
+            "point_group".to_string(),
+            entry.record.descriptors.point_group.name(),
+        ),
+        ("charge".to_string(), entry.charge.to_string()),
+        ("multiplicity".to_string(), entry.multiplicity().to_string()),
+        ("spiral".to_string(), entry.spiral.to_string()),
+        ("geometry".to_string(), "force_field".to_string()),
+    ]);
+    pairs
+        .iter()
+        .map(|(k, v)| {
+            if v.contains(char::is_whitespace) || v.is_empty() {
+                format!("{k}=\"{v}\"")
+            } else {
+                format!("{k}={v}")
+            }
+        })
+        .collect::<Vec<_>>()
+        .join(" ")
 }
 
 /// Scalar descriptors as (name, text) pairs, in a fixed order, for SDF data fields and CSV.
@@ -240,8 +334,12 @@ pub fn bond_orders(entry: &Entry) -> Vec<([u32; 2], u8)> {
 
 /// Writes the SDF record of one entry.
 pub fn write_sdf(w: &mut impl Write, entry: &Entry) -> io::Result<()> {
+    let number = |n: Option<u64>| n.map_or(String::new(), |n| n.to_string());
     let mut fields = vec![
-        ("id".to_string(), entry.id.clone()),
+        ("id".to_string(), entry.id.to_string()),
+        ("list".to_string(), entry.id.list.tag().to_string()),
+        ("number".to_string(), number(entry.numbers.number)),
+        ("ipr_number".to_string(), number(entry.numbers.ipr_number)),
         ("spiral".to_string(), entry.spiral.to_string()),
         (
             "point_group".to_string(),
@@ -253,7 +351,7 @@ pub fn write_sdf(w: &mut impl Write, entry: &Entry) -> io::Result<()> {
     sdf::write_record(
         w,
         &sdf::Record {
-            name: &entry.id,
+            name: &entry.id.to_string(),
             comment: "cagerank force-field starting geometry; refine with quantum chemistry",
             coords: &entry.geometry.coords,
             bonds: &bond_orders(entry),
@@ -286,36 +384,234 @@ pub fn write_atomic(
     result.map_err(wrap)
 }
 
+/// How [`write_all`] writes.
+#[derive(Debug, Clone, Default)]
+pub struct WriteOptions {
+    /// Replace files that already exist (otherwise their presence is an error and nothing is
+    /// written).
+    pub overwrite: bool,
+    /// Method text for the one deck format asked for (checked with [`deck::check_method`]);
+    /// `None` uses each code's default.
+    pub method: Option<String>,
+}
+
+/// The formats actually written: the xTB deck reads `{stem}.xyz`, so it brings XYZ along.
+fn with_dependencies(formats: &[Format]) -> Vec<Format> {
+    let mut formats = formats.to_vec();
+    if formats.contains(&Format::Deck(Code::Xtb)) && !formats.contains(&Format::Xyz) {
+        formats.insert(0, Format::Xyz);
+    }
+    formats
+}
+
+/// The names of the files written for an entry with file stem `stem`.
+pub fn file_names(stem: &str, formats: &[Format]) -> Vec<String> {
+    with_dependencies(formats)
+        .into_iter()
+        .flat_map(|format| match format {
+            Format::Deck(code) => deck::file_names(code, stem),
+            _ => vec![format!("{stem}.{}", extension(format))],
+        })
+        .collect()
+}
+
+/// Every file an export of entries with these stems writes into `dir`, in writing order.
+pub fn planned_files(stems: &[String], formats: &[Format]) -> Vec<String> {
+    let mut names: Vec<String> = stems.iter().flat_map(|s| file_names(s, formats)).collect();
+    if formats.contains(&Format::Sdf) {
+        names.push("shortlist.sdf".into());
+    }
+    names.push("manifest.csv".into());
+    names
+}
+
+/// Files describing the whole directory: an export adds its rows and records to them, keeping
+/// those of other isomers, so several exports can share one directory.
+pub const SUMMARIES: [&str; 2] = ["shortlist.sdf", "manifest.csv"];
+
+/// Refuses a set of files that names one file twice or, without `overwrite`, names a file that
+/// already exists in `dir` (other than the [`SUMMARIES`], which are updated). Callers run it
+/// before the slow work, and [`write_all`] again.
+pub fn check_targets(names: &[String], dir: &Path, overwrite: bool) -> Result<(), ExportError> {
+    if let Ok(text) = fs::read_to_string(dir.join("manifest.csv")) {
+        if !text.is_empty() && !text.starts_with(manifest::HEADER_START) {
+            return Err(ExportError::ForeignManifest {
+                path: dir.join("manifest.csv"),
+            });
+        }
+    }
+    let mut seen = BTreeSet::new();
+    for name in names {
+        if !seen.insert(name.as_str()) {
+            return Err(ExportError::SameFile { name: name.clone() });
+        }
+        let path = dir.join(name);
+        if !overwrite && !SUMMARIES.contains(&name.as_str()) && fs::symlink_metadata(&path).is_ok()
+        {
+            return Err(ExportError::Exists { path });
+        }
+    }
+    Ok(())
+}
+
 /// Writes every entry in every format into `dir`, the combined `shortlist.sdf` (if SDF is
-/// asked for) and `manifest.csv`. Returns the paths written.
+/// asked for) and `manifest.csv`, with the names [`planned_files`] gives. Every name is checked
+/// first ([`check_targets`]): if any file exists and `options.overwrite` is off, or two entries
+/// would share a file, nothing is written. Returns the paths written.
 pub fn write_all(
     entries: &[Entry],
     formats: &[Format],
     dir: &Path,
+    options: &WriteOptions,
 ) -> Result<Vec<PathBuf>, ExportError> {
     check_sdf(entries, formats)?;
-    let mut written = Vec::new();
-    let mut files = Vec::with_capacity(entries.len());
-    for entry in entries {
-        let mut names = Vec::new();
-        for &format in formats {
-            let name = format!("{}.{}", safe_file_stem(&entry.id), format.extension());
-            let path = dir.join(&name);
-            write_atomic(&path, |w| write_one(w, entry, format))?;
-            written.push(path);
-            names.push(name);
+    let stems: Vec<String> = entries.iter().map(Entry::stem).collect();
+    check_targets(&planned_files(&stems, formats), dir, options.overwrite)?;
+    let formats = with_dependencies(formats);
+    let files: Vec<Vec<String>> = stems.iter().map(|s| file_names(s, &formats)).collect();
+    // The shared files are merged in memory first, so a foreign manifest stops the export
+    // before anything is written.
+    let ids: BTreeSet<String> = entries.iter().map(|e| e.id.to_string()).collect();
+    let shortlist = if formats.contains(&Format::Sdf) {
+        let mut ours = Vec::new();
+        for e in entries {
+            write_sdf(&mut ours, e).map_err(|source| io_error(dir, "shortlist.sdf", source))?;
         }
-        files.push(names);
-    }
-    if formats.contains(&Format::Sdf) {
-        let path = dir.join("shortlist.sdf");
-        write_atomic(&path, |w| entries.iter().try_for_each(|e| write_sdf(w, e)))?;
+        Some(merged_shortlist(
+            &read_existing(dir, "shortlist.sdf")?,
+            &ours,
+            &ids,
+        ))
+    } else {
+        None
+    };
+    let mut ours = Vec::new();
+    manifest::write(&mut ours, entries, &files)
+        .map_err(|source| io_error(dir, "manifest.csv", source))?;
+    let manifest = merged_manifest(dir, &read_existing(dir, "manifest.csv")?, &ours, &ids)?;
+    let mut written = Vec::new();
+    let mut put = |name: &str, fill: &mut dyn FnMut(&mut BufWriter<File>) -> io::Result<()>| {
+        let path = dir.join(name);
+        write_atomic(&path, fill)?;
         written.push(path);
+        Ok::<(), ExportError>(())
+    };
+    for entry in entries {
+        for &format in &formats {
+            match format {
+                Format::Deck(code) => {
+                    for file in deck_files(entry, code, options) {
+                        put(&file.name, &mut |w| w.write_all(file.text.as_bytes()))?;
+                    }
+                }
+                _ => {
+                    let name = format!("{}.{}", entry.stem(), extension(format));
+                    put(&name, &mut |w| write_one(w, entry, format))?;
+                }
+            }
+        }
     }
-    let path = dir.join("manifest.csv");
-    write_atomic(&path, |w| manifest::write(w, entries, &files))?;
-    written.push(path);
+    if let Some(text) = shortlist {
+        put("shortlist.sdf", &mut |w| w.write_all(&text))?;
+    }
+    put("manifest.csv", &mut |w| w.write_all(&manifest))?;
     Ok(written)
+}
+
+fn io_error(dir: &Path, name: &str, source: io::Error) -> ExportError {
+    ExportError::Io {
+        path: dir.join(name),
+        source,
+    }
+}
+
+/// The bytes of `dir/name`, empty if there is no such file.
+fn read_existing(dir: &Path, name: &str) -> Result<Vec<u8>, ExportError> {
+    match fs::read(dir.join(name)) {
+        Ok(bytes) => Ok(bytes),
+        Err(e) if e.kind() == io::ErrorKind::NotFound => Ok(Vec::new()),
+        Err(source) => Err(io_error(dir, name, source)),
+    }
+}
+
+/// The records of an existing multi-structure SDF whose name (first line) is not one of `ids`,
+/// followed by `ours`.
+fn merged_shortlist(existing: &[u8], ours: &[u8], ids: &BTreeSet<String>) -> Vec<u8> {
+    let text = String::from_utf8_lossy(existing);
+    let mut out = String::new();
+    for record in text.split_inclusive("$$$$\n") {
+        let name = record.lines().next().unwrap_or("").trim();
+        if record.trim().is_empty() || ids.contains(name) {
+            continue;
+        }
+        out.push_str(record);
+    }
+    let mut bytes = out.into_bytes();
+    bytes.extend_from_slice(ours);
+    bytes
+}
+
+/// An existing manifest's rows for other isomers, then ours under the same header. A manifest
+/// with other columns (another version) is not mixed with ours.
+fn merged_manifest(
+    dir: &Path,
+    existing: &[u8],
+    ours: &[u8],
+    ids: &BTreeSet<String>,
+) -> Result<Vec<u8>, ExportError> {
+    let existing = String::from_utf8_lossy(existing);
+    let ours = String::from_utf8_lossy(ours);
+    let mut old = existing.lines();
+    let mut new = ours.lines();
+    let header = new.next().unwrap_or("");
+    let mut out = format!("{header}\n");
+    if let Some(old_header) = old.next() {
+        if old_header != header {
+            return Err(ExportError::ForeignManifest {
+                path: dir.join("manifest.csv"),
+            });
+        }
+        for row in old {
+            let id = row.split(',').next().unwrap_or("");
+            if !row.trim().is_empty() && !ids.contains(id) {
+                out.push_str(row);
+                out.push('\n');
+            }
+        }
+    }
+    for row in new {
+        out.push_str(row);
+        out.push('\n');
+    }
+    Ok(out.into_bytes())
+}
+
+/// The deck files of one entry for one code.
+fn deck_files(entry: &Entry, code: Code, options: &WriteOptions) -> Vec<deck::DeckFile> {
+    let method = options
+        .method
+        .clone()
+        .unwrap_or_else(|| code.default_method().to_string());
+    let (title, stem) = (entry.title(), entry.stem());
+    let job = deck::Job {
+        stem: &stem,
+        title: &title,
+        coords: &entry.geometry.coords,
+        charge: entry.charge,
+        multiplicity: entry.multiplicity(),
+        method: &method,
+    };
+    deck::deck(code, &job)
+}
+
+/// File extension of a per-isomer format (decks name their own files).
+fn extension(format: Format) -> &'static str {
+    match format {
+        Format::Xyz => "xyz",
+        Format::Sdf => "sdf",
+        Format::Json => "json",
+        Format::Deck(_) => "inp",
+    }
 }
 
 fn write_one(w: &mut impl Write, entry: &Entry, format: Format) -> io::Result<()> {
@@ -323,6 +619,7 @@ fn write_one(w: &mut impl Write, entry: &Entry, format: Format) -> io::Result<()
         Format::Xyz => xyz::write(w, &comment_line(entry), &entry.geometry.coords),
         Format::Sdf => write_sdf(w, entry),
         Format::Json => json::write(w, entry),
+        Format::Deck(_) => Ok(()),
     }
 }
 
@@ -332,7 +629,7 @@ fn check_sdf(entries: &[Entry], formats: &[Format]) -> Result<(), ExportError> {
     }
     match entries.iter().find(|e| e.cage.atoms() > sdf::MAX_ATOMS) {
         Some(e) => Err(ExportError::TooLargeForSdf {
-            id: e.id.clone(),
+            id: e.id,
             atoms: e.cage.atoms(),
         }),
         None => Ok(()),

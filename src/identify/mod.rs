@@ -13,6 +13,7 @@ pub mod numbers;
 pub mod parse;
 pub mod perceive;
 pub mod sdf;
+pub mod size;
 pub mod xyz;
 
 pub(crate) use parse::{clip, parse_coordinate, Cursor, MAX_ATOMS};

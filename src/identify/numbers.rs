@@ -1,26 +1,32 @@
-//! Isomer numbers (the trade's complete-list and IPR-list positions) of an identified cage.
+//! Isomer numbers (the trade's complete-list and IPR-list positions): the numbers of a canonical
+//! spiral ([`numbers`]) and the isomer behind an ID ([`locate`]).
 //!
 //! A number is the position of the canonical spiral among all canonical spirals of that size
-//! (Fowler & Manolopoulos, Atlas of Fullerenes 1995), so finding it means enumerating the list up
-//! to the cage. That is cheap for small cages and slow for large ones, so the enumerator is only
-//! run up to [`COMPLETE_LIST_MAX_ATOMS`] (complete list) and [`IPR_LIST_MAX_ATOMS`] (IPR list);
-//! beyond that the number is reported as not computed, with the way to get it (a catalogue of that
-//! size). Reading catalogues is left to `catalogue`; this module only asks it.
+//! (Fowler & Manolopoulos, Atlas of Fullerenes 1995). A catalogue stores its records in that
+//! order, so when one holds the size the number is a binary search (spiral to number) or a direct
+//! index (number to spiral) through the catalogue's read API; nothing is enumerated. Otherwise
+//! `enumerate::lookup` runs only the units on one side of the target. The complete list is still
+//! only searched up to [`COMPLETE_LIST_MAX_ATOMS`] and the IPR list up to [`IPR_LIST_MAX_ATOMS`];
+//! beyond them a number is reported as not computed, with the way to get it (a catalogue of that
+//! size). Only catalogue files written as one whole run by a search known to find every cage are
+//! trusted. Reading the files is left to `catalogue`; this module only asks it.
 
 use crate::cage::FaceSet;
-use crate::catalogue::record::special_faces_of;
 use crate::catalogue::{data_file_name, CatalogueError, DataFile};
-use crate::enumerate::{list_number_of, EnumerateError};
-use crate::spiral::Spiral;
+use crate::enumerate::{self, Spec};
+use crate::id::{IsomerId, List};
+use crate::spiral::{Spiral, SpiralError};
+use std::cmp::Ordering;
 use std::path::Path;
 
-/// Largest cage whose complete-list number is found by enumeration. C84 has 51592 (OEIS A007894)
-/// isomers; C100's 285914 take minutes (hexagon starts included, docs/performance.md), too slow
-/// to run per structure by default (threshold: a judgement call, not measured per machine).
+/// Largest cage whose complete-list number is searched for without a catalogue. C84 has 51,592
+/// isomers (OEIS A007894); a cage in the middle of the list costs half of them (about 10-15 s on
+/// two cores), one near either end far less (IPR cages sit at the end: see `enumerate::lookup`).
+/// Beyond this a catalogue is needed (a judgement call, not measured per machine).
 pub const COMPLETE_LIST_MAX_ATOMS: usize = 84;
 
-/// Largest cage whose IPR-list number is found by enumeration (the IPR search prunes hard; C120
-/// has 10774 IPR isomers, OEIS A046880). A judgement call, not measured per machine.
+/// Largest cage whose IPR-list number is searched for without a catalogue (the IPR search prunes
+/// hard; C120 has 10,774 IPR isomers, OEIS A046880). A judgement call, not measured per machine.
 pub const IPR_LIST_MAX_ATOMS: usize = 120;
 
 /// One isomer number, or why it is not given.
@@ -30,7 +36,7 @@ pub enum Number {
     Listed(u64),
     /// The cage is not on this list (a non-IPR cage has no IPR number).
     NotListed,
-    /// Not computed: the size is beyond the enumeration limit and no catalogue was given.
+    /// Not computed: the size is beyond the search limit and no catalogue holds it.
     NotComputed { limit: usize },
 }
 
@@ -50,134 +56,388 @@ pub struct Numbers {
     pub ipr: Number,
 }
 
+impl Numbers {
+    /// The IDs these numbers give, complete list first (`C84:all-51591`, `C84:IPR-23`).
+    pub fn ids(&self, atoms: usize) -> Vec<IsomerId> {
+        let atoms = atoms as u32;
+        let mut out = Vec::new();
+        if let Some(n) = self.complete.listed() {
+            out.push(IsomerId::new(atoms, List::All, n));
+        }
+        if let Some(n) = self.ipr.listed() {
+            out.push(IsomerId::new(atoms, List::Ipr, n));
+        }
+        out
+    }
+}
+
+/// An isomer found by its ID: its canonical spiral and both numbers.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub struct Located {
+    pub spiral: Spiral,
+    pub numbers: Numbers,
+}
+
 /// Why numbers could not be looked up.
 #[derive(Debug)]
 pub enum NumbersError {
     Catalogue(CatalogueError),
-    Enumerate(EnumerateError),
+    /// No fullerene has this many atoms.
+    Size(SpiralError),
 }
 
 impl std::fmt::Display for NumbersError {
     fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
         match self {
             NumbersError::Catalogue(e) => write!(f, "cannot read the catalogue: {e}"),
-            NumbersError::Enumerate(e) => write!(f, "cannot enumerate to find the number: {e}"),
+            NumbersError::Size(e) => e.fmt(f),
         }
     }
 }
 
 impl std::error::Error for NumbersError {}
 
-/// Numbers of a canonical fullerene spiral: from the catalogue in `catalogue` when it holds the
-/// size, otherwise by enumeration within the size limits.
+/// Called with (units done, units to run) while a list is searched; a catalogue lookup never
+/// calls it.
+pub type Progress<'a> = &'a mut dyn FnMut(usize, usize);
+
+/// Numbers of a canonical fullerene spiral (`ipr`: the cage obeys the isolated-pentagon rule):
+/// from the catalogue in `catalogue` when it holds the size, otherwise by searching the list
+/// within the size limits.
 pub fn numbers(
     spiral: &Spiral,
     ipr: bool,
     catalogue: Option<&Path>,
 ) -> Result<Numbers, NumbersError> {
-    let (mut complete, mut ipr_number) = match catalogue {
+    numbers_with_progress(spiral, ipr, catalogue, &mut |_, _| {})
+}
+
+/// As [`numbers`], reporting the progress of any search.
+pub fn numbers_with_progress(
+    spiral: &Spiral,
+    ipr: bool,
+    catalogue: Option<&Path>,
+    progress: Progress,
+) -> Result<Numbers, NumbersError> {
+    let (complete, ipr_number) = match catalogue {
         Some(dir) => from_catalogue(dir, spiral, ipr).map_err(NumbersError::Catalogue)?,
-        None => (None, None),
+        None => (None, (!ipr).then_some(Number::NotListed)),
     };
-    if complete.is_none() || ipr_number.is_none() {
-        let found = by_enumeration_for(spiral, ipr, complete.is_none(), ipr_number.is_none())
-            .map_err(NumbersError::Enumerate)?;
-        complete = complete.or(Some(found.complete));
-        ipr_number = ipr_number.or(Some(found.ipr));
-    }
+    let atoms = spiral.atoms();
+    let (complete, ipr_number) = match (complete, ipr_number) {
+        (Some(c), Some(i)) => (c, i),
+        (None, known_ipr) if atoms <= COMPLETE_LIST_MAX_ATOMS => {
+            // One pass over the complete list gives both numbers.
+            let (c, i) = search(spiral, false, progress);
+            (c, known_ipr.unwrap_or(i))
+        }
+        (c, i) => (
+            c.unwrap_or(Number::NotComputed {
+                limit: COMPLETE_LIST_MAX_ATOMS,
+            }),
+            match i {
+                Some(i) => i,
+                None if atoms <= IPR_LIST_MAX_ATOMS => search(spiral, true, progress).1,
+                None => Number::NotComputed {
+                    limit: IPR_LIST_MAX_ATOMS,
+                },
+            },
+        ),
+    };
     Ok(Numbers {
-        complete: complete.expect("filled above"),
-        ipr: ipr_number.expect("filled above"),
+        complete,
+        ipr: ipr_number,
     })
 }
 
-/// Numbers of a canonical fullerene spiral by enumeration, within the size limits.
-pub fn by_enumeration(spiral: &Spiral, ipr: bool) -> Result<Numbers, EnumerateError> {
-    by_enumeration_for(spiral, ipr, true, true)
+/// Numbers of a canonical fullerene spiral by searching the lists, within the size limits.
+pub fn by_enumeration(spiral: &Spiral, ipr: bool) -> Numbers {
+    numbers_with_progress(spiral, ipr, None, &mut |_, _| {})
+        .expect("invariant: without a catalogue nothing is read")
 }
 
-/// As [`by_enumeration`], running only the lists asked for (the others are `NotComputed`).
-fn by_enumeration_for(
-    spiral: &Spiral,
-    ipr: bool,
-    want_complete: bool,
-    want_ipr: bool,
-) -> Result<Numbers, EnumerateError> {
-    let atoms = spiral.atoms();
-    let complete = if !want_complete || atoms > COMPLETE_LIST_MAX_ATOMS {
-        Number::NotComputed {
-            limit: COMPLETE_LIST_MAX_ATOMS,
-        }
-    } else {
-        position_in_list(spiral, false)?
+/// (complete-list, IPR-list) numbers from one search of one list; the complete list gives
+/// both, the IPR list only the second.
+fn search(spiral: &Spiral, ipr_list: bool, progress: Progress) -> (Number, Number) {
+    let Ok(spec) = Spec::fullerene(spiral.atoms() as u64, ipr_list) else {
+        return (Number::NotListed, Number::NotListed);
     };
-    let ipr = if !ipr {
-        Number::NotListed
-    } else if !want_ipr || atoms > IPR_LIST_MAX_ATOMS {
-        Number::NotComputed {
-            limit: IPR_LIST_MAX_ATOMS,
-        }
-    } else {
-        position_in_list(spiral, true)?
-    };
-    Ok(Numbers { complete, ipr })
+    let listed = |n: Option<u64>| n.map_or(Number::NotListed, Number::Listed);
+    match enumerate::number_of(&spec, spiral, progress) {
+        Some(iso) => (listed(iso.number), listed(iso.ipr_number)),
+        None => (Number::NotListed, Number::NotListed),
+    }
 }
 
-/// Position of `spiral` in the complete or IPR list of its size, stopping as soon as the list
-/// passes it (lists come in increasing spiral order).
-pub fn position_in_list(spiral: &Spiral, ipr: bool) -> Result<Number, EnumerateError> {
-    Ok(list_number_of(spiral, ipr)?.map_or(Number::NotListed, Number::Listed))
+/// Position of `spiral` in the complete or IPR list of its size, running only the units on one
+/// side of it (lists come in increasing spiral order).
+pub fn position_in_list(spiral: &Spiral, ipr: bool) -> Number {
+    let (complete, ipr_number) = search(spiral, ipr, &mut |_, _| {});
+    if ipr {
+        ipr_number
+    } else {
+        complete
+    }
 }
 
 /// Numbers read from the catalogue in `dir`: the complete-list file of the size gives both
-/// numbers, the IPR-list file the IPR number. `None` for a list whose file is absent or sharded
-/// (not numbered), so the caller can fall back to enumeration.
+/// numbers, the IPR-list file the IPR number. `None` for a list whose file is absent, sharded
+/// or untrusted, so the caller can fall back to a search.
 pub fn from_catalogue(
     dir: &Path,
     spiral: &Spiral,
     ipr: bool,
 ) -> Result<(Option<Number>, Option<Number>), CatalogueError> {
     let atoms = spiral.atoms() as u32;
-    let wanted = special_faces_of(spiral);
     let mut complete = None;
     let mut ipr_number = (!ipr).then_some(Number::NotListed);
-    let whole = dir.join(data_file_name(FaceSet::Fullerene, atoms, false, 0));
-    if let Some(record) = find_record(&whole, &wanted)? {
-        complete = Some(record.0.map_or(Number::NotListed, Number::Listed));
+    if let Some(mut file) = open_trusted(dir, atoms, false)? {
+        let hit = find_spiral(&mut file, spiral)?;
+        complete = Some(listed(hit.and_then(|h| h.0)));
         if ipr {
-            ipr_number = record.1.map(Number::Listed);
+            ipr_number = Some(listed(hit.and_then(|h| h.1)));
         }
     }
-    let ipr_file = dir.join(data_file_name(FaceSet::Fullerene, atoms, true, 0));
-    if ipr && ipr_number.is_none() {
-        if let Some(record) = find_record(&ipr_file, &wanted)? {
-            ipr_number = record.1.map(Number::Listed);
+    if ipr_number.is_none() {
+        if let Some(mut file) = open_trusted(dir, atoms, true)? {
+            let hit = find_spiral(&mut file, spiral)?;
+            ipr_number = Some(listed(hit.and_then(|h| h.1)));
         }
     }
     Ok((complete, ipr_number))
 }
 
+fn listed(n: Option<u64>) -> Number {
+    n.map_or(Number::NotListed, Number::Listed)
+}
+
+/// The isomer named by `id`, with both numbers: from the catalogue in `catalogue` when it holds
+/// the list (a direct index), otherwise by searching the list up to the number; the other
+/// list's number likewise (within the search limits). `Ok(None)` if the list is shorter than
+/// the number. This is what `show C84:IPR-23` needs.
+pub fn locate(
+    id: IsomerId,
+    catalogue: Option<&Path>,
+    progress: Progress,
+) -> Result<Option<Located>, NumbersError> {
+    locate_with(id, catalogue, true, progress)
+}
+
+/// As [`locate`], but the other list's number is only read from a catalogue, never searched
+/// for (it is `NotComputed` otherwise): for a caller that needs the cage, not both numbers.
+pub fn locate_in_list(
+    id: IsomerId,
+    catalogue: Option<&Path>,
+    progress: Progress,
+) -> Result<Option<Located>, NumbersError> {
+    locate_with(id, catalogue, false, progress)
+}
+
+fn locate_with(
+    id: IsomerId,
+    catalogue: Option<&Path>,
+    search_other: bool,
+    progress: Progress,
+) -> Result<Option<Located>, NumbersError> {
+    let spec =
+        Spec::fullerene(u64::from(id.atoms), id.list.is_ipr()).map_err(NumbersError::Size)?;
+    let from_file = match catalogue {
+        Some(dir) => by_number_in_catalogue(dir, id).map_err(NumbersError::Catalogue)?,
+        None => None,
+    };
+    let (spiral, ipr, known) = match from_file {
+        Some(Some((spiral, numbers))) => {
+            let ipr = spiral_is_ipr(&spiral);
+            (spiral, ipr, numbers)
+        }
+        Some(None) => return Ok(None),
+        None => match enumerate::isomer_numbered(&spec, id.number, &mut *progress) {
+            Some(iso) => (iso.spiral, iso.ipr, (iso.number, iso.ipr_number)),
+            None => return Ok(None),
+        },
+    };
+    let numbers = match known {
+        (Some(c), Some(i)) => Numbers {
+            complete: Number::Listed(c),
+            ipr: Number::Listed(i),
+        },
+        (Some(c), None) if !ipr => Numbers {
+            complete: Number::Listed(c),
+            ipr: Number::NotListed,
+        },
+        (c, i) => {
+            let mut rest = if search_other {
+                numbers_with_progress(&spiral, ipr, catalogue, progress)?
+            } else {
+                catalogue_only(&spiral, ipr, catalogue)?
+            };
+            if let Some(c) = c {
+                rest.complete = Number::Listed(c);
+            }
+            if let Some(i) = i {
+                rest.ipr = Number::Listed(i);
+            }
+            rest
+        }
+    };
+    Ok(Some(Located { spiral, numbers }))
+}
+
+/// Numbers a catalogue gives, `NotComputed` for the rest.
+fn catalogue_only(
+    spiral: &Spiral,
+    ipr: bool,
+    catalogue: Option<&Path>,
+) -> Result<Numbers, NumbersError> {
+    let (complete, ipr_number) = match catalogue {
+        Some(dir) => from_catalogue(dir, spiral, ipr).map_err(NumbersError::Catalogue)?,
+        None => (None, None),
+    };
+    let not_computed = Number::NotComputed { limit: 0 };
+    Ok(Numbers {
+        complete: complete.unwrap_or(not_computed),
+        ipr: ipr_number.unwrap_or(if ipr { not_computed } else { Number::NotListed }),
+    })
+}
+
+fn spiral_is_ipr(spiral: &Spiral) -> bool {
+    spiral.to_cage().is_ipr()
+}
+
 /// A catalogue record's (complete-list number, IPR-list number).
 type ListNumbers = (Option<u64>, Option<u64>);
 
-/// (number, ipr_number) of the record with these special faces, if the file exists, is a whole
-/// (numbered) run and holds it.
-fn find_record(path: &Path, wanted: &[(u32, u8)]) -> Result<Option<ListNumbers>, CatalogueError> {
-    if !path.exists() {
+/// The data file of one list if it exists, is one whole (numbered) run, and was made by a
+/// search known to find every cage of that list.
+fn open_trusted(dir: &Path, atoms: u32, ipr: bool) -> Result<Option<DataFile>, CatalogueError> {
+    let path = dir.join(data_file_name(FaceSet::Fullerene, atoms, ipr, 0));
+    if !path.is_file() {
         return Ok(None);
     }
-    let mut file = DataFile::open(path)?;
-    if file.info.shard.is_some() {
+    let file = DataFile::open(&path)?;
+    let info = &file.info;
+    let spec = Spec {
+        atoms: info.atoms,
+        face_set: info.face_set,
+        ipr: info.ipr,
+        all_starts: info.all_starts,
+    };
+    let trusted = info.shard.is_none() && info.atoms == atoms && info.ipr == ipr;
+    Ok((trusted && spec.starts_verified() && spec.spiral_complete()).then_some(file))
+}
+
+/// The face sizes of a record's spiral (hexagons everywhere but its special faces).
+fn record_sizes(faces: usize, special: &[(u32, u8)]) -> Vec<u8> {
+    let mut sizes = vec![6u8; faces];
+    for &(pos, size) in special {
+        if let Some(slot) = (pos as usize).checked_sub(1).and_then(|i| sizes.get_mut(i)) {
+            *slot = size;
+        }
+    }
+    sizes
+}
+
+/// Binary search of a data file (records are stored in canonical-spiral order): the numbers of
+/// the record with this spiral, or `None` if the file does not hold it.
+fn find_spiral(
+    file: &mut DataFile,
+    spiral: &Spiral,
+) -> Result<Option<ListNumbers>, CatalogueError> {
+    let faces = spiral.sizes().len();
+    let target = spiral.sizes();
+    let chunks = file.chunk_count();
+    // The last chunk whose first record is not after the target.
+    let (mut lo, mut hi) = (0usize, chunks);
+    while hi - lo > 1 {
+        let mid = (lo + hi) / 2;
+        let chunk = file.read_chunk(mid)?;
+        if chunk.is_empty() {
+            hi = mid;
+            continue;
+        }
+        let first = record_sizes(faces, &chunk.record(0).special_faces);
+        if first.as_slice() <= target {
+            lo = mid;
+        } else {
+            hi = mid;
+        }
+    }
+    if chunks == 0 {
         return Ok(None);
     }
-    for c in 0..file.chunk_count() {
-        if let Some(r) = file
-            .chunk_records(c)?
-            .into_iter()
-            .find(|r| r.special_faces == wanted)
-        {
-            return Ok(Some((r.number, r.ipr_number)));
+    let chunk = file.read_chunk(lo)?;
+    let (mut a, mut b) = (0usize, chunk.len());
+    while a < b {
+        let mid = (a + b) / 2;
+        let sizes = record_sizes(faces, &chunk.record(mid).special_faces);
+        match sizes.as_slice().cmp(target) {
+            Ordering::Less => a = mid + 1,
+            Ordering::Greater => b = mid,
+            Ordering::Equal => {
+                let ipr_before = (0..mid).filter(|&j| chunk.ipr(j)).count() as u64;
+                let mut record = chunk.record(mid);
+                file.number(lo, mid, ipr_before, &mut record);
+                return Ok(Some((record.number, record.ipr_number)));
+            }
         }
     }
     Ok(None)
+}
+
+/// The isomer at `id`'s position read from a catalogue: `None` if no trusted file holds the
+/// list, `Some(None)` if the list is shorter than the number.
+fn by_number_in_catalogue(
+    dir: &Path,
+    id: IsomerId,
+) -> Result<Option<Option<(Spiral, ListNumbers)>>, CatalogueError> {
+    let own = open_trusted(dir, id.atoms, id.list.is_ipr())?;
+    let (mut file, count_ipr) = match (own, id.list) {
+        (Some(f), _) => (f, false),
+        (None, List::Ipr) => match open_trusted(dir, id.atoms, false)? {
+            Some(f) => (f, true),
+            None => return Ok(None),
+        },
+        (None, List::All) => return Ok(None),
+    };
+    // Chunk c holds the records numbered after `before` (IPR records only when `count_ipr`).
+    let mut before = 0u64;
+    for c in 0..file.chunk_count() {
+        let entry = &file.index.chunks[c];
+        let here = if count_ipr {
+            entry.stats.ipr
+        } else {
+            u64::from(entry.records)
+        };
+        if id.number > before + here {
+            before += here;
+            continue;
+        }
+        let chunk = file.read_chunk(c)?;
+        let wanted = id.number - before;
+        let mut ipr_seen = 0u64;
+        for i in 0..chunk.len() {
+            let is_ipr = chunk.ipr(i);
+            let position = if count_ipr {
+                ipr_seen + u64::from(is_ipr)
+            } else {
+                i as u64 + 1
+            };
+            if position == wanted && (!count_ipr || is_ipr) {
+                let mut record = chunk.record(i);
+                file.number(c, i, ipr_seen, &mut record);
+                let path = file.path().to_path_buf();
+                let spiral = record.spiral().map_err(|e| {
+                    CatalogueError::corrupt(
+                        &path,
+                        crate::catalogue::Place::Chunk(c as u32),
+                        format!("record {} does not wind: {e}", i + 1),
+                    )
+                })?;
+                return Ok(Some(Some((spiral, (record.number, record.ipr_number)))));
+            }
+            ipr_seen += u64::from(is_ipr);
+        }
+        return Ok(Some(None));
+    }
+    Ok(Some(None))
 }
