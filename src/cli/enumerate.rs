@@ -270,8 +270,10 @@ fn write_catalogue(out: &mut Out, args: &Args, spec: &Spec, dir: &Path) -> Resul
 
 /// Cuts the units still to do into consecutive batches sized so that each takes about
 /// [`COMMIT_EVERY`], from the time the previous batch took. Unit costs vary by orders of
-/// magnitude along the spiral order, so the size follows them, within a factor of four per
-/// step; batch boundaries change only when units are committed, never the bytes written.
+/// magnitude along the spiral order, so the size follows them, growing at most twofold per
+/// step (a run of cheap units must not make the next batch of dear ones huge) and shrinking
+/// at most fourfold; batch boundaries change only when units are committed, never the bytes
+/// written.
 struct Batches {
     at: usize,
     size: usize,
@@ -291,8 +293,9 @@ impl Batches {
             at: 0,
             size: 4 * threads,
             least: threads,
-            // The enumerator hands results on in windows of 256 units per thread.
-            most: 256 * threads,
+            // A C90 run has about 2000 units; 64 per thread keeps even an all-cheap stretch
+            // to a few dozen commits per run.
+            most: 64 * threads,
         }
     }
 
@@ -307,7 +310,7 @@ impl Batches {
 
     fn took(&mut self, elapsed: Duration) {
         let ratio = COMMIT_EVERY.as_secs_f64() / elapsed.as_secs_f64().max(1e-3);
-        let next = (self.size as f64 * ratio.clamp(0.25, 4.0)).round() as usize;
+        let next = (self.size as f64 * ratio.clamp(0.25, 2.0)).round() as usize;
         self.size = next.clamp(self.least, self.most);
     }
 }
@@ -348,19 +351,20 @@ mod tests {
         let mut b = Batches::new(2);
         let mut seen = Vec::new();
         let mut sizes = Vec::new();
-        // Fast units (0.1 s a batch) grow the batch, at most fourfold per step and up to the
-        // enumerator's window; then slow ones (30 s a batch) shrink it, to one unit per thread.
+        // Fast units (0.1 s a batch) grow the batch, at most twofold per step and up to 64
+        // units per thread; then slow ones (30 s a batch) shrink it fourfold per step, to one
+        // unit per thread.
         let mut step = 0;
         while let Some(batch) = b.next(&units) {
             seen.extend_from_slice(batch);
             sizes.push(batch.len());
-            let took = if step < 4 { 0.1 } else { 30.0 };
+            let took = if step < 6 { 0.1 } else { 30.0 };
             b.took(Duration::from_secs_f64(took));
             step += 1;
         }
         assert_eq!(seen, units);
-        assert_eq!(&sizes[..7], &[8, 32, 128, 512, 512, 128, 32]);
-        assert!(sizes[7..sizes.len() - 1].iter().all(|&s| s >= 2));
+        assert_eq!(&sizes[..10], &[8, 16, 32, 64, 128, 128, 128, 32, 8, 2]);
+        assert!(sizes[10..sizes.len() - 1].iter().all(|&s| s == 2));
         // A batch that took exactly the target keeps its size.
         let mut b = Batches::new(1);
         b.took(COMMIT_EVERY);
