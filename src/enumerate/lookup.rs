@@ -139,7 +139,9 @@ pub fn number_of_from(
     let from = match (from, totals) {
         (_, None) => End::Front,
         (Some(f), _) => f,
-        (None, Some(_)) if 2 * u > all.len() => End::Back,
+        // The work per unit is concentrated at the end of a list (its last units are the
+        // slowest by far), so counting from the back pays only for the last few percent.
+        (None, Some(_)) if (all.len() - u - 1) * 20 < all.len() => End::Back,
         (None, Some(_)) => End::Front,
     };
     let (number, ipr_number) = match (from, totals) {
@@ -171,7 +173,7 @@ fn numbered(spec: &Spec, f: Found, unit: usize, number: u64, ipr_number: u64) ->
 
 /// The isomer numbered `number` in `spec`'s list (the IPR list when `spec.ipr`), or `None` if the
 /// list is shorter. Walks the units in order (from the back when the published total says the
-/// number is in the second half) and stops at the unit that holds it.
+/// number is among the last tenth of a percent) and stops at the unit that holds it.
 pub fn isomer_numbered(
     spec: &Spec,
     number: u64,
@@ -183,7 +185,9 @@ pub fn isomer_numbered(
     }
     let all = units(spec);
     match totals {
-        Some((total, ipr_total)) if 2 * number > total => {
+        // As in `number_of_from`: the last units hold most of the work, so walk back only for
+        // the last tenth of a percent of the list.
+        Some((total, ipr_total)) if (total - number).saturating_mul(1000) < total => {
             walk_back(spec, &all, total - number, ipr_total, progress)
         }
         _ => walk_front(spec, &all, number, progress),
