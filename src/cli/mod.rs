@@ -1,6 +1,7 @@
 //! Command-line front end: argument parsing (clap derive, the single source of help text) and
 //! printing. No science lives here; every subcommand calls into the library.
 
+mod derive;
 mod draw;
 mod enumerate;
 mod export;
@@ -96,6 +97,8 @@ pub enum Command {
     Verify(verify::Args),
     /// Name the isomer(s) held in an XYZ or SDF file (bonds perceived from distances).
     Identify(identify::Args),
+    /// List, score and rank addition and substitution patterns of one cage (screening heuristics).
+    Derive(derive::Args),
 }
 
 pub fn run(cli: Cli) -> Result<(), CliError> {
@@ -110,5 +113,6 @@ pub fn run(cli: Cli) -> Result<(), CliError> {
         Command::Export(a) => export::run(a),
         Command::Draw(a) => draw::run(a),
         Command::Identify(a) => identify::run(a),
+        Command::Derive(a) => derive::run(a),
     }
 }
