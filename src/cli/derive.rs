@@ -154,10 +154,13 @@ pub fn run(args: Args) -> Result<(), CliError> {
         );
     } else {
         let mut all: Vec<PatternScore> = Vec::new();
-        search.stream(|f| f.clone(), |n, f| {
-            all.push(score(&f, n));
-            ControlFlow::Continue(())
-        });
+        search.stream(
+            |f| f.clone(),
+            |n, f| {
+                all.push(score(&f, n));
+                ControlFlow::Continue(())
+            },
+        );
         if restricted {
             name_globally(&parent, &search, &mut all);
         }
@@ -372,7 +375,10 @@ fn count_text(args: &Args, parent: &Parent, search: &Search, count: &BigUint) ->
             "patterns": count.to_string(),
         })
         .to_string(),
-        FormatArg::Csv => format!("pattern,group_order,patterns\n{what},{},{count}", search.group.order()),
+        FormatArg::Csv => format!(
+            "pattern,group_order,patterns\n{what},{},{count}",
+            search.group.order()
+        ),
         FormatArg::Table => format!(
             "{what}: {count} patterns (symmetry group of order {})",
             search.group.order()

@@ -58,7 +58,10 @@ impl SiteGroup {
             member[s as usize] = true;
         }
         let keep: Vec<usize> = (0..self.order())
-            .filter(|&i| set.iter().all(|&s| member[self.perms[i][s as usize] as usize]))
+            .filter(|&i| {
+                set.iter()
+                    .all(|&s| member[self.perms[i][s as usize] as usize])
+            })
             .collect();
         SiteGroup {
             sites: self.sites,

@@ -275,6 +275,7 @@ impl Subgraph {
             a[y as usize][x as usize] = p - 1;
         }
         let mut pf = 1u64;
+        let mut columns = Vec::with_capacity(m);
         let mut i = 0;
         while i + 1 < m {
             let Some(j) = (i + 1..m).find(|&j| a[i][j] != 0) else {
@@ -292,15 +293,19 @@ impl Subgraph {
             let inv = pow_mod(pivot, p - 2, p);
             let (head, tail) = a.split_at_mut(i + 2);
             let (ri, rj) = (&head[i], &head[i + 1]);
+            // Only columns where a pivot row is nonzero change: the matrix stays sparse for
+            // most of the elimination, and this skips its zeros.
+            columns.clear();
+            columns.extend((i + 2..m).filter(|&l| ri[l] != 0 || rj[l] != 0));
             for row in tail.iter_mut() {
                 let (x, y) = (row[i], row[i + 1]);
                 if x == 0 && y == 0 {
                     continue;
                 }
                 // A'[k][l] = A[k][l] - (A[k][i+1] A[i][l] - A[k][i] A[i+1][l]) / a.
-                let (cy, cx) = (y * inv % p, x * inv % p);
-                for l in i + 2..m {
-                    let t = (cy * ri[l] + (p - cx) * rj[l]) % p;
+                let (cy, cx) = (y * inv % p, (p - x) * inv % p);
+                for &l in &columns {
+                    let t = (cy * ri[l] + cx * rj[l]) % p;
                     row[l] = (row[l] + p - t) % p;
                 }
             }

@@ -337,10 +337,12 @@ pub fn find_pattern(
             limit: LIST_LIMIT,
         });
     }
-    let found = search.nth(id.number).map_err(|seen| DeriveError::NoSuchPattern {
-        id: id.to_string(),
-        count: seen,
-    })?;
+    let found = search
+        .nth(id.number)
+        .map_err(|seen| DeriveError::NoSuchPattern {
+            id: id.to_string(),
+            count: seen,
+        })?;
     Ok((search, found))
 }
 
@@ -403,10 +405,20 @@ mod tests {
 
     #[test]
     fn pattern_ids_round_trip() {
-        for text in ["C60:IPR-1+2H:7", "C60:all-1812+3CH2@66:12", "C70:IPR-1+2N:1"] {
+        for text in [
+            "C60:IPR-1+2H:7",
+            "C60:all-1812+3CH2@66:12",
+            "C70:IPR-1+2N:1",
+        ] {
             assert_eq!(PatternId::parse(text).unwrap().to_string(), text);
         }
-        for bad in ["C60:IPR-1", "C60:IPR-1+2X:1", "C60:IPR-1+0H:1", "C60+2H:0", "+2H:1"] {
+        for bad in [
+            "C60:IPR-1",
+            "C60:IPR-1+2X:1",
+            "C60:IPR-1+0H:1",
+            "C60+2H:0",
+            "+2H:1",
+        ] {
             assert!(PatternId::parse(bad).is_err(), "{bad}");
         }
     }

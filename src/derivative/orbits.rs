@@ -75,7 +75,9 @@ impl Search {
         for &s in &problem.base {
             allowed[s as usize] = false;
             match &ends {
-                Some(ends) => ends[s as usize].iter().for_each(|&a| base_atoms[a as usize] = true),
+                Some(ends) => ends[s as usize]
+                    .iter()
+                    .for_each(|&a| base_atoms[a as usize] = true),
                 None => base_atoms[s as usize] = true,
             }
         }
@@ -167,7 +169,9 @@ impl Search {
                 (s as usize) < self.sites()
                     && self.allowed[s as usize]
                     && self.ends.as_ref().is_none_or(|ends| {
-                        ends[s as usize].iter().all(|&a| !std::mem::replace(&mut used[a as usize], true))
+                        ends[s as usize]
+                            .iter()
+                            .all(|&a| !std::mem::replace(&mut used[a as usize], true))
                     })
             })
     }

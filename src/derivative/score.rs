@@ -67,7 +67,11 @@ pub struct Scorer<'a> {
 
 impl<'a> Scorer<'a> {
     /// Checks the electron count once for the run (the same for every pattern).
-    pub fn new(parent: &'a Parent, search: &'a Search, charge: i32) -> Result<Scorer<'a>, DeriveError> {
+    pub fn new(
+        parent: &'a Parent,
+        search: &'a Search,
+        charge: i32,
+    ) -> Result<Scorer<'a>, DeriveError> {
         let cage = &parent.cage;
         let mut on_pentagon = vec![false; cage.atoms()];
         for face in cage.faces().iter().filter(|f| f.len() == 5) {
@@ -183,7 +187,9 @@ pub fn effect(
     for &s in search.base.iter().chain(sites) {
         match (search.kind, search.ends()) {
             (Kind::Substitute(h), _) => hetero[s as usize] = Some(h),
-            (_, Some(ends)) => ends[s as usize].iter().for_each(|&a| removed[a as usize] = true),
+            (_, Some(ends)) => ends[s as usize]
+                .iter()
+                .for_each(|&a| removed[a as usize] = true),
             (_, None) => removed[s as usize] = true,
         }
     }

@@ -84,7 +84,10 @@ pub fn build(
             for &v in &all {
                 let (element, length) = addend_bond(addend);
                 let index = atoms.len() as u32;
-                atoms.push(neutral(element, along(coords[v as usize], normals[v as usize], length)));
+                atoms.push(neutral(
+                    element,
+                    along(coords[v as usize], normals[v as usize], length),
+                ));
                 bonds.push(([v, index], 1));
             }
         }
@@ -126,7 +129,9 @@ fn addend_bond(addend: Addend) -> (&'static str, f64) {
 /// away from the centroid.
 pub fn normals(parent: &Parent, coords: &[[f64; 3]]) -> Vec<[f64; 3]> {
     let n = coords.len() as f64;
-    let centroid = coords.iter().fold([0.0; 3], |c, x| add(c, scale(*x, 1.0 / n)));
+    let centroid = coords
+        .iter()
+        .fold([0.0; 3], |c, x| add(c, scale(*x, 1.0 / n)));
     parent
         .cage
         .rotation()
