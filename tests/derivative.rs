@@ -326,7 +326,12 @@ fn isolated_atom_makes_a_radical() {
         .find(|x| x.sites == form.iter().map(|v| v + 1).collect::<Vec<_>>())
         .expect("pattern listed");
     assert!(!hit.kekule_structure);
+    assert!(
+        hit.radical,
+        "a neutral addition pattern without a Kekulé structure is a radical"
+    );
     assert_eq!(hit.kekule, "0");
+    assert!(all.iter().all(|x| x.radical != x.kekule_structure));
     let mut ranked = all.clone();
     ranked.sort_by(default_order);
     let first_radical = ranked

@@ -138,29 +138,27 @@ pub fn run(args: Args) -> Result<(), CliError> {
     let scorer = Scorer::new(&parent, &search, args.charge.charge).map_err(usage)?;
     let restricted = problem.allowed.is_some() || !problem.base.is_empty();
     let label = format!("{}+{}{}", parent.label, args.k, kind.token());
-    let score = |f: &Found, n: u64| scorer.score(f, n, format!("{label}:{n}"));
+    // Scores are computed in parallel by `stream`; the number (and so the ID) is known only
+    // when the result comes out in order.
+    let score = |f: &Found| scorer.score(f, 0, String::new());
+    let named = |mut s: PatternScore, n: u64| {
+        s.number = n;
+        s.id = format!("{label}:{n}");
+        s
+    };
     let mut printer = Printer::new(args.format, args.top);
     printer.header(&mut out, &search)?;
     if args.sort == SortArg::Id && !restricted {
-        search.stream(
-            |f| f.clone(),
-            |n, f| {
-                let s = score(&f, n);
-                match printer.row(&mut out, &s) {
-                    Ok(true) => ControlFlow::Continue(()),
-                    _ => ControlFlow::Break(()),
-                }
-            },
-        );
+        search.stream(score, |n, s| match printer.row(&mut out, &named(s, n)) {
+            Ok(true) => ControlFlow::Continue(()),
+            _ => ControlFlow::Break(()),
+        });
     } else {
         let mut all: Vec<PatternScore> = Vec::new();
-        search.stream(
-            |f| f.clone(),
-            |n, f| {
-                all.push(score(&f, n));
-                ControlFlow::Continue(())
-            },
-        );
+        search.stream(score, |n, s| {
+            all.push(named(s, n));
+            ControlFlow::Continue(())
+        });
         if restricted {
             name_globally(&parent, &search, &mut all);
         }
@@ -416,7 +414,7 @@ impl Printer {
             FormatArg::Csv => write_line(
                 out,
                 &format!(
-                    "order,id,sites,point_group,chiral,orbit,kekule_structure,kekule,homo,lumo,gap,pi_energy,{places}"
+                    "order,id,sites,point_group,chiral,orbit,kekule_structure,radical,kekule,homo,lumo,gap,pi_energy,{places}"
                 ),
             ),
             FormatArg::Table => write_line(
@@ -448,16 +446,16 @@ impl Printer {
         } else {
             format!("{}/{}", s.pentagon_atoms, s.hexagon_atoms)
         };
-        let kekule = if s.kekule_structure {
-            s.kekule.clone()
-        } else {
+        let kekule = if s.radical {
             "0 radical".to_string()
+        } else {
+            s.kekule.clone()
         };
         let line = match self.format {
             FormatArg::Json => serde_json::to_string(s)
                 .map_err(|e| CliError::failed(format!("cannot encode JSON: {e}")))?,
             FormatArg::Csv => format!(
-                "{},{},{},{},{},{},{},{},{:.6},{:.6},{:.6},{:.6},{}",
+                "{},{},{},{},{},{},{},{},{},{:.6},{:.6},{:.6},{:.6},{}",
                 self.printed,
                 s.id,
                 sites,
@@ -465,6 +463,7 @@ impl Printer {
                 s.chiral,
                 s.orbit,
                 s.kekule_structure,
+                s.radical,
                 s.kekule,
                 s.homo,
                 s.lumo,

@@ -36,8 +36,12 @@ pub struct PatternScore {
     pub stabiliser: u32,
     pub point_group: PointGroup,
     pub chiral: bool,
-    /// False when the remaining pi system has no Kekulé structure (a radical when neutral).
+    /// False when the remaining pi system has no Kekulé structure (heteroatoms count as left
+    /// out: N keeps its lone pair, B its empty orbital).
     pub kekule_structure: bool,
+    /// A neutral addition pattern without a Kekulé structure: the derivative is a radical.
+    /// (A charged run, or a substitution, may instead have a charge-separated structure.)
+    pub radical: bool,
     /// Exact Kekulé count of the remaining pi system, as a decimal string.
     pub kekule: String,
     pub homo: f64,
@@ -128,6 +132,9 @@ impl<'a> Scorer<'a> {
             point_group: sym.point_group,
             chiral: sym.chiral,
             kekule_structure: count > BigUint::ZERO,
+            radical: count == BigUint::ZERO
+                && self.charge == 0
+                && !matches!(self.search.kind, Kind::Substitute(_)),
             kekule: count.to_string(),
             homo: levels.homo,
             lumo: levels.lumo,
