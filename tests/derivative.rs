@@ -696,6 +696,22 @@ fn cli_lists_c60h2_as_csv_identically_on_one_and_two_threads() {
     // Clare & Kepert (1994): 23 isomers, one row each after the header.
     assert_eq!(lines.len(), 24);
     assert!(lines[1].starts_with("1,C60:IPR-1+2H:"));
+    // --top keeps only the best rows while listing; they must be the head of the full ranking.
+    let top = cagerank(
+        &[
+            "derive",
+            "C60:IPR-1",
+            "--add",
+            "2",
+            "--format",
+            "csv",
+            "--top",
+            "4",
+        ],
+        "2",
+    );
+    let top = String::from_utf8(top.stdout).expect("utf-8");
+    assert_eq!(top.lines().collect::<Vec<_>>(), lines[..5]);
     let by_id = cagerank(
         &[
             "derive", "C60:1", "--ipr", "--add", "2", "--sort", "id", "--format", "json",

@@ -154,11 +154,28 @@ pub fn run(args: Args) -> Result<(), CliError> {
             _ => ControlFlow::Break(()),
         });
     } else {
+        // With --top in rank order only the best T rows need keeping: trim to T whenever 2T
+        // have piled up, so memory stays bounded by the top rather than the whole list.
+        let keep = match (args.sort, args.top, restricted) {
+            (SortArg::Rank, Some(t), false) => Some(t.max(1)),
+            _ => None,
+        };
         let mut all: Vec<PatternScore> = Vec::new();
+        let mut listed = 0u64;
         search.stream(score, |n, s| {
+            listed += 1;
             all.push(named(s, n));
+            if let Some(t) = keep.filter(|&t| all.len() >= 2 * t) {
+                all.sort_by(default_order);
+                all.truncate(t);
+            }
             ControlFlow::Continue(())
         });
+        if BigUint::from(listed) != count {
+            return Err(CliError::failed(format!(
+                "internal error: listed {listed} patterns but counted {count}; please report this"
+            )));
+        }
         if restricted {
             name_globally(&parent, &search, &mut all);
         }
