@@ -12,6 +12,9 @@
 
 use super::{DeriveError, Hetero};
 use crate::cage::Cage;
+use faer::dyn_stack::{MemBuffer, MemStack};
+use faer::linalg::evd::{self, ComputeEigenvectors};
+use faer::{Mat, Par};
 
 /// Van-Catledge (1980) Coulomb parameter h of a heteroatom (carbon is 0).
 pub fn coulomb(atom: Option<Hetero>) -> f64 {
@@ -72,7 +75,10 @@ pub fn filled(electrons: i64, orbitals: usize) -> Result<usize, DeriveError> {
     Ok((electrons / 2) as usize)
 }
 
-/// Eigenvalues (descending) of the weighted Hückel matrix of the remaining atoms.
+/// Eigenvalues (descending) of the weighted Hückel matrix of the remaining atoms, with faer's
+/// self-adjoint eigensolver run sequentially (runs score many patterns in parallel already).
+/// A hand-written Householder + QL routine was tried and was slower on 60 atoms (378 against
+/// 285 µs, `benches/derivative.rs`, 2026-12-03), so the same solver as `score` is used.
 pub fn spectrum(cage: &Cage, removed: &[bool], hetero: &[Option<Hetero>]) -> Vec<f64> {
     let mut index = vec![usize::MAX; cage.atoms()];
     let mut m = 0;
@@ -82,138 +88,40 @@ pub fn spectrum(cage: &Cage, removed: &[bool], hetero: &[Option<Hetero>]) -> Vec
             m += 1;
         }
     }
-    let mut a = vec![vec![0.0f64; m]; m];
+    let mut a = Mat::<f64>::zeros(m, m);
     for v in 0..cage.atoms() {
         if !removed[v] {
-            a[index[v]][index[v]] = coulomb(hetero[v]);
+            a[(index[v], index[v])] = coulomb(hetero[v]);
         }
     }
     for &[u, v] in cage.edges() {
         let (u, v) = (u as usize, v as usize);
         if !removed[u] && !removed[v] {
             let k = resonance(hetero[u], hetero[v]);
-            a[index[u]][index[v]] = k;
-            a[index[v]][index[u]] = k;
+            a[(index[u], index[v])] = k;
+            a[(index[v], index[u])] = k;
         }
     }
-    let (mut d, mut e) = tridiagonalise(&mut a);
-    tridiagonal_eigenvalues(&mut d, &mut e);
-    d.sort_by(|x, y| y.total_cmp(x));
-    d
-}
-
-/// Householder reduction of a symmetric matrix to tridiagonal form, eigenvalues only: returns
-/// the diagonal and the subdiagonal (`e[i]` couples i - 1 and i; `e[0]` is 0). Wilkinson &
-/// Reinsch, *Handbook for Automatic Computation II* (1971), procedure tred1, from memory.
-/// Written here rather than calling faer: a run scores thousands of 50-100 atom matrices, where
-/// faer's general eigensolver spent several times longer per matrix (measured in
-/// `benches/derivative.rs`); tests compare the values with nalgebra's eigensolver.
-fn tridiagonalise(a: &mut [Vec<f64>]) -> (Vec<f64>, Vec<f64>) {
-    let n = a.len();
-    let mut d = vec![0.0; n];
-    let mut e = vec![0.0; n];
-    for i in (1..n).rev() {
-        let l = i - 1;
-        let scale: f64 = a[i][..=l].iter().map(|x| x.abs()).sum();
-        if l == 0 || scale == 0.0 {
-            e[i] = a[i][l];
-            continue;
-        }
-        let mut h = 0.0;
-        for x in &mut a[i][..=l] {
-            *x /= scale;
-            h += *x * *x;
-        }
-        let f = a[i][l];
-        let g = if f >= 0.0 { -h.sqrt() } else { h.sqrt() };
-        e[i] = scale * g;
-        h -= f * g;
-        a[i][l] = f - g;
-        let mut f = 0.0;
-        for j in 0..=l {
-            let lower: f64 = a[j][..=j].iter().zip(&a[i][..=j]).map(|(x, y)| x * y).sum();
-            let upper: f64 = (j + 1..=l).map(|k| a[k][j] * a[i][k]).sum();
-            let g = lower + upper;
-            e[j] = g / h;
-            f += e[j] * a[i][j];
-        }
-        let hh = f / (h + h);
-        for j in 0..=l {
-            let f = a[i][j];
-            let g = e[j] - hh * f;
-            e[j] = g;
-            for k in 0..=j {
-                a[j][k] -= f * e[k] + g * a[i][k];
-            }
-        }
-    }
-    for (i, di) in d.iter_mut().enumerate() {
-        *di = a[i][i];
-    }
-    e[0] = 0.0;
-    (d, e)
-}
-
-/// Eigenvalues of a symmetric tridiagonal matrix by the QL algorithm with implicit shifts
-/// (Wilkinson & Reinsch 1971, procedure tql1, from memory); `d` is overwritten with them.
-fn tridiagonal_eigenvalues(d: &mut [f64], e: &mut [f64]) {
-    let n = d.len();
-    if n == 0 {
-        return;
-    }
-    e.copy_within(1.., 0);
-    e[n - 1] = 0.0;
-    for l in 0..n {
-        let mut iterations = 0;
-        loop {
-            let mut m = l;
-            while m + 1 < n {
-                let dd = d[m].abs() + d[m + 1].abs();
-                if e[m].abs() <= f64::EPSILON * dd {
-                    break;
-                }
-                m += 1;
-            }
-            if m == l {
-                break;
-            }
-            iterations += 1;
-            assert!(
-                iterations <= 100,
-                "invariant: QL converges on a bounded symmetric matrix"
-            );
-            let mut g = (d[l + 1] - d[l]) / (2.0 * e[l]);
-            let mut r = g.hypot(1.0);
-            g = d[m] - d[l] + e[l] / (g + r.copysign(g));
-            let (mut s, mut c, mut p) = (1.0f64, 1.0f64, 0.0f64);
-            let mut underflow = false;
-            for i in (l..m).rev() {
-                let f = s * e[i];
-                let b = c * e[i];
-                r = f.hypot(g);
-                e[i + 1] = r;
-                if r == 0.0 {
-                    d[i + 1] -= p;
-                    e[m] = 0.0;
-                    underflow = true;
-                    break;
-                }
-                s = f / r;
-                c = g / r;
-                g = d[i + 1] - p;
-                r = (d[i] - g) * s + 2.0 * c * b;
-                p = s * r;
-                d[i + 1] = g + p;
-                g = c * r - b;
-            }
-            if underflow {
-                continue;
-            }
-            d[l] -= p;
-            e[l] = g;
-            e[m] = 0.0;
-        }
-    }
+    let mut s = faer::diag::Diag::<f64>::zeros(m);
+    let scratch = evd::self_adjoint_evd_scratch::<f64>(
+        m,
+        ComputeEigenvectors::No,
+        Par::Seq,
+        Default::default(),
+    );
+    let mut buffer = MemBuffer::new(scratch);
+    evd::self_adjoint_evd(
+        a.as_ref(),
+        s.as_mut(),
+        None,
+        Par::Seq,
+        MemStack::new(&mut buffer),
+        Default::default(),
+    )
+    .expect("invariant: the symmetric eigensolver converges on a small bounded matrix");
+    let mut values: Vec<f64> = s.column_vector().iter().copied().collect();
+    values.reverse();
+    values
 }
 
 /// HOMO, LUMO, gap and pi energy with `filled` doubly occupied orbitals of the descending
