@@ -940,3 +940,32 @@ fn reference_sdf_matches_what_the_library_builds() {
         assert_eq!(connection_table(record), connection_table(&now), "{name}");
     }
 }
+
+#[test]
+fn identify_recovers_the_parent_when_addends_are_ignored() {
+    // The molfile of a built derivative, read back by `identify` with the addend element
+    // ignored, is C60-Ih again: the same canonical spiral as the parent.
+    use cagerank::identify::{self, parse::Format};
+    let p = c60();
+    let coords = cagerank::geometry::relax(&p.cage).expect("relaxes").coords;
+    for (kind, k, element) in [
+        (Kind::Addend(Addend::H), 2, "H"),
+        (Kind::Addend(Addend::F), 4, "F"),
+        (Kind::Addend(Addend::Cl), 2, "Cl"),
+    ] {
+        let s = search(&p, kind, k);
+        for (sites, _) in listed(&s).into_iter().take(3) {
+            let m = structure::build(&p, &s, &sites, &coords, 0);
+            let text = structure::molfile(&m, "check") + "$$$$\n";
+            let read = identify::read(text.as_bytes(), Some(Format::Sdf)).expect("parses");
+            let options = identify::Options {
+                ignore: identify::parse_element_list(element).expect("element"),
+                ..identify::Options::default()
+            };
+            let id = identify::identify(&read[0], &options).expect("a cage");
+            assert_eq!(id.ignored, k);
+            let canonical = id.canonical.expect("spiral").spiral;
+            assert_eq!(canonical, p.spiral, "{element} {sites:?}");
+        }
+    }
+}
