@@ -474,6 +474,12 @@ fn k_too_large_is_refused() {
         Search::new(&p, &Problem::new(Kind::Bridge(BondFilter::Any), 11)),
         Err(DeriveError::TooMany { available: 10, .. })
     ));
+    let mut outside = Problem::new(H, 1);
+    outside.allowed = Some(vec![3, 20]);
+    assert!(matches!(
+        Search::new(&p, &outside),
+        Err(DeriveError::BadSite { .. })
+    ));
 }
 
 #[test]

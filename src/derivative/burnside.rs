@@ -44,7 +44,7 @@ fn fixed(search: &Search, perm: &[u32]) -> BigUint {
         Some(ends) => {
             let candidates: Vec<Candidate> = cycles
                 .iter()
-                .filter_map(|c| Candidate::new(c, ends, search.sites()))
+                .filter_map(|c| Candidate::new(c, ends))
                 .collect();
             Families::new(&candidates, k).count()
         }
@@ -87,7 +87,7 @@ struct Candidate {
 
 impl Candidate {
     /// `None` if two bonds of the cycle share an atom.
-    fn new(cycle: &[u32], ends: &[[u32; 2]], _sites: usize) -> Option<Candidate> {
+    fn new(cycle: &[u32], ends: &[[u32; 2]]) -> Option<Candidate> {
         let mut atoms: Vec<u32> = cycle.iter().flat_map(|&e| ends[e as usize]).collect();
         atoms.sort_unstable();
         let before = atoms.len();

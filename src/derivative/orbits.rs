@@ -58,11 +58,21 @@ impl Search {
         let cage = &parent.cage;
         let on_bonds = problem.kind.on_bonds();
         let sites = sites_of(cage, on_bonds);
+        let what = if on_bonds { "bonds" } else { "atoms" };
+        if let Some(&s) = problem
+            .allowed
+            .iter()
+            .flatten()
+            .chain(&problem.base)
+            .find(|&&s| s as usize >= sites)
+        {
+            return Err(DeriveError::BadSite {
+                text: format!("site {} is past the {sites} {what} of this cage", s + 1),
+            });
+        }
         let mut allowed = vec![problem.allowed.is_none(); sites];
         for &s in problem.allowed.iter().flatten() {
-            if let Some(a) = allowed.get_mut(s as usize) {
-                *a = true;
-            }
+            allowed[s as usize] = true;
         }
         if let super::Kind::Bridge(filter) = problem.kind {
             for (e, faces) in cage.edge_faces().iter().enumerate() {
@@ -96,7 +106,7 @@ impl Search {
             return Err(DeriveError::TooMany {
                 k: problem.k,
                 available,
-                what: if on_bonds { "bonds" } else { "atoms" },
+                what,
             });
         }
         let allowed_list: Vec<u32> = (0..sites as u32).filter(|&s| allowed[s as usize]).collect();
@@ -159,21 +169,6 @@ impl Search {
             }
         }
         best
-    }
-
-    /// Whether `set` (sorted, distinct) is a valid pattern: allowed sites, no shared atoms.
-    pub fn is_valid(&self, set: &[u32]) -> bool {
-        let mut used = vec![false; self.atoms];
-        set.windows(2).all(|w| w[0] < w[1])
-            && set.iter().all(|&s| {
-                (s as usize) < self.sites()
-                    && self.allowed[s as usize]
-                    && self.ends.as_ref().is_none_or(|ends| {
-                        ends[s as usize]
-                            .iter()
-                            .all(|&a| !std::mem::replace(&mut used[a as usize], true))
-                    })
-            })
     }
 
     /// Canonical children of a canonical prefix, in increasing order of the added site.
