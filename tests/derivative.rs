@@ -975,3 +975,21 @@ fn identify_recovers_the_parent_when_addends_are_ignored() {
         }
     }
 }
+
+#[test]
+fn c60h2_on_a_bond_keeps_the_kekule_structures_with_that_bond_double() {
+    // Removing both atoms of a bond leaves exactly the Kekulé structures in which the bond is
+    // double: 12500 x 11/25 = 5500 for a 6:6 bond and 12500 x 7/25 = 3500 for a 6:5 bond
+    // (Pauling bond orders of C60, domain notes section 3; 12500 from Klein et al., JACS 108
+    // (1986) 1301).
+    let p = c60();
+    for (e, &[u, v]) in p.cage.edges().iter().enumerate() {
+        let hexagons = p.cage.edge_faces()[e]
+            .iter()
+            .filter(|&&f| p.cage.faces()[f as usize].len() == 6)
+            .count();
+        let expected = if hexagons == 2 { 5500u32 } else { 3500 };
+        let removed = removed_atoms(&p, &[u, v]);
+        assert_eq!(kekule::count(&p.cage, &removed), BigUint::from(expected));
+    }
+}
