@@ -156,16 +156,6 @@ impl Kind {
         };
         Some(kind)
     }
-
-    /// Whether two kinds draw their sites from the same numbered list (an addend pattern of H
-    /// and one of F are the same atom set; the element only changes what is drawn).
-    pub fn same_sites(self, other: Kind) -> bool {
-        match (self, other) {
-            (Kind::Bridge(a), Kind::Bridge(b)) => a == b,
-            (Kind::Bridge(_), _) | (_, Kind::Bridge(_)) => false,
-            _ => true,
-        }
-    }
 }
 
 /// Why a derivative request cannot be answered; each message says what to do instead.
@@ -281,10 +271,6 @@ impl Parent {
             cage,
             automorphisms,
         })
-    }
-
-    pub fn group_order(&self) -> usize {
-        self.automorphisms.len().max(1)
     }
 }
 
