@@ -8,6 +8,7 @@
 pub mod automorphism;
 pub mod cage;
 pub mod catalogue;
+pub mod derivative;
 pub mod draw;
 pub mod energy;
 pub mod enumerate;

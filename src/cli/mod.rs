@@ -1,6 +1,7 @@
 //! Command-line front end: argument parsing (clap derive, the single source of help text) and
 //! printing. No science lives here; every subcommand calls into the library.
 
+mod derive;
 mod draw;
 mod energy;
 mod enumerate;
@@ -103,6 +104,8 @@ pub enum Command {
     /// Rank one size by relaxed tight-binding energy: graph descriptors pick candidates, the
     /// relaxation ranks them (screening heuristics, not stability predictions).
     Screen(screen::Args),
+    /// List, score and rank addition and substitution patterns of one cage (screening heuristics).
+    Derive(derive::Args),
 }
 
 pub fn run(cli: Cli) -> Result<(), CliError> {
@@ -119,5 +122,6 @@ pub fn run(cli: Cli) -> Result<(), CliError> {
         Command::Identify(a) => identify::run(a),
         Command::Energy(a) => energy::run(a),
         Command::Screen(a) => screen::run(a),
+        Command::Derive(a) => derive::run(a),
     }
 }
