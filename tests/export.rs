@@ -298,6 +298,7 @@ fn write_all_names_files_by_list_and_the_manifest_reads_as_numbers() {
         "shell",
         "chiral",
         "nmr",
+        "geometry",
         "files",
     ]
     .into();

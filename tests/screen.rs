@@ -252,3 +252,100 @@ fn energies_put_other_isolated_isomers_first() {
     assert_eq!(ranking(86, 0)[0], pair("C86:IPR-17", "C2"));
     assert_eq!(ranking(78, -6)[0], pair("C78:IPR-5", "D3h"));
 }
+
+// What a screen stores is read back everywhere: `query --rank-by relative_energy_kj` orders by
+// it, `show` prints it, and `export` writes the tight-binding geometry and says so, for the
+// charge asked and not for another.
+#[test]
+fn stored_energies_reach_query_show_and_export() {
+    let dir = scratch("readers", &["fullerene-c76-ipr.cgr"]);
+    let screened = screen(
+        &dir,
+        &[
+            "--atoms", "76", "--ipr", "--charge", "-2", "--format", "json",
+        ],
+    );
+    assert!(screened.status.success(), "{}", text(&screened));
+    let screen_ids: Vec<String> = String::from_utf8_lossy(&screened.stdout)
+        .lines()
+        .map(|l| serde_json::from_str::<serde_json::Value>(l).unwrap()["id"].to_string())
+        .collect();
+    let run = |args: &[&str]| {
+        bin()
+            .args(args)
+            .arg("--catalogue")
+            .arg(&dir)
+            .output()
+            .expect("binary runs")
+    };
+    // Descriptors of the ion come from its own catalogue file, refused until it is built.
+    let refused = run(&["query", "--atoms", "76", "--ipr", "--charge", "-2"]);
+    assert_eq!(refused.status.code(), Some(2), "{}", text(&refused));
+    let built = run(&["enumerate", "76", "--ipr", "--charge", "-2", "--quiet"]);
+    assert!(built.status.success(), "{}", text(&built));
+    let query = run(&[
+        "query",
+        "--atoms",
+        "76",
+        "--ipr",
+        "--charge",
+        "-2",
+        "--rank-by",
+        "relative_energy_kj",
+        "--format",
+        "json",
+    ]);
+    assert!(query.status.success(), "{}", text(&query));
+    let query_ids: Vec<String> = String::from_utf8_lossy(&query.stdout)
+        .lines()
+        .map(|l| {
+            let v: serde_json::Value = serde_json::from_str(l).unwrap();
+            assert!(v["relative_energy_kj"].is_number(), "{v}");
+            format!("\"C76:IPR-{}\"", v["ipr_number"])
+        })
+        .collect();
+    assert_eq!(query_ids, screen_ids);
+    // The neutral cage has no stored energies: ranking by them is refused, not faked.
+    let neutral = run(&[
+        "query",
+        "--atoms",
+        "76",
+        "--ipr",
+        "--rank-by",
+        "relative_energy_kj",
+    ]);
+    assert_eq!(neutral.status.code(), Some(2), "{}", text(&neutral));
+
+    let show = run(&["show", "C76:IPR-1", "--charge", "-2"]);
+    let shown = String::from_utf8_lossy(&show.stdout);
+    assert!(show.status.success(), "{}", text(&show));
+    assert!(shown.contains("energies (tight binding"), "{shown}");
+    assert!(shown.contains("relative (kJ/mol)"), "{shown}");
+    let show_neutral = run(&["show", "C76:IPR-1"]);
+    assert!(String::from_utf8_lossy(&show_neutral.stdout).contains("not computed"));
+
+    let out = dir.join("export");
+    let export = run(&[
+        "export",
+        "--atoms",
+        "76",
+        "--ipr",
+        "--top",
+        "1",
+        "--charge",
+        "-2",
+        "--format",
+        "xyz",
+        "--out",
+        out.to_str().unwrap(),
+    ]);
+    assert!(export.status.success(), "{}", text(&export));
+    let first = screen_ids[0].trim_matches('"').replace(':', "_");
+    let xyz = std::fs::read_to_string(out.join(format!("{first}.xyz"))).unwrap();
+    let comment = xyz.lines().nth(1).unwrap();
+    assert!(comment.contains("geometry=tight_binding"), "{comment}");
+    assert!(comment.contains("charge=-2"), "{comment}");
+    assert!(comment.contains("relative_energy_kj=0.000"), "{comment}");
+    let manifest = std::fs::read_to_string(out.join("manifest.csv")).unwrap();
+    assert!(manifest.contains("tight_binding"), "{manifest}");
+}

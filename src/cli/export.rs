@@ -9,13 +9,15 @@
 
 use super::CliError;
 use cagerank::cage::FaceSet;
+use cagerank::catalogue::energies::{self, EnergyHeader};
 use cagerank::catalogue::query::{query, Filter, Query};
-use cagerank::catalogue::{self, data_file_name};
+use cagerank::catalogue::{self, data_file_name, Record};
 use cagerank::enumerate::{self, Spec};
-use cagerank::export::{self, deck, Entry, Format, Numbers, WriteOptions, CAUTION};
+use cagerank::export::{self, deck, Entry, Format, Numbers, TightBinding, WriteOptions, CAUTION};
 use cagerank::id::{IdError, IsomerId, List};
 use cagerank::identify::numbers::{self, Located};
 use cagerank::score::{self, rank, Scored};
+use cagerank::screen::{self, Candidates, ScreenSpec};
 use cagerank::spiral::Spiral;
 use std::path::{Path, PathBuf};
 
@@ -76,10 +78,17 @@ pub fn run(args: Args) -> Result<(), CliError> {
     std::fs::create_dir_all(&args.out)
         .map_err(|e| CliError::failed(format!("cannot create {}: {e}", args.out.display())))?;
     let mut entries: Vec<Entry> = Vec::with_capacity(picks.len());
+    let energy_dir = numbers_dir(&args);
     for (id, spiral, numbers) in &picks {
-        let entry = export::prepare(*id, spiral, *numbers, args.charge.charge)
-            .map_err(|e| CliError::failed(e.to_string()))?;
-        if !entry.geometry.converged {
+        let mut entry =
+            export::prepare(*id, spiral, *numbers, args.charge.charge).map_err(|e| match e {
+                export::ExportError::Score(_) => CliError::usage(e.to_string()),
+                _ => CliError::failed(e.to_string()),
+            })?;
+        if let Some(dir) = &energy_dir {
+            attach_tight_binding(&mut entry, dir)?;
+        }
+        if entry.tight_binding.is_none() && !entry.geometry.converged {
             eprintln!(
                 "warning: {id}: force-field relaxation stopped with residual force {:.2e} eV/Å",
                 entry.geometry.max_force_ev_per_angstrom
@@ -136,8 +145,8 @@ fn shortlist(args: &Args) -> Result<Vec<Pick>, CliError> {
             let spec =
                 Spec::fullerene(atoms, args.ipr).map_err(|e| CliError::usage(e.to_string()))?;
             match catalogue_for(args, &spec) {
-                Some(dir) => from_catalogue(&dir, &spec, k),
-                None => by_enumeration(&spec, k),
+                Some(dir) => from_catalogue(&dir, &spec, k, args.charge.charge),
+                None => by_enumeration(&spec, k, args.charge.charge),
             }
         }
         _ => Err(CliError::usage(
@@ -304,17 +313,51 @@ fn id_in(spec: &Spec, numbers: Numbers) -> Option<IsomerId> {
     Some(IsomerId::new(spec.atoms, list, n?))
 }
 
-fn from_catalogue(dir: &Path, spec: &Spec, k: usize) -> Result<Vec<Pick>, CliError> {
-    let q = Query {
-        atoms: spec.atoms,
+/// The top K from a catalogue: by stored tight-binding energy when a screen of this size, list
+/// and charge stored some, else by the screening order of the cage (or cage ion).
+fn from_catalogue(dir: &Path, spec: &Spec, k: usize, charge: i32) -> Result<Vec<Pick>, CliError> {
+    let screen_spec = ScreenSpec {
         face_set: FaceSet::Fullerene,
+        atoms: spec.atoms,
         ipr: spec.ipr,
-        charge: 0,
-        filter: Filter::default(),
-        rank_by: Vec::new(),
-        top: Some(k),
+        charge,
+        candidates: Candidates::All,
+        settings: cagerank::energy::Settings::default(),
     };
-    let records = query(dir, &q).map_err(|e| CliError::failed(e.to_string()))?;
+    let ranked = screen::ranked(dir, &screen_spec).map_err(super::screen::screen_error)?;
+    let by_energy: Vec<&Record> = ranked
+        .iter()
+        .filter(|r| r.rank.is_some())
+        .map(|r| &r.record)
+        .collect();
+    let records: Vec<Record> = if !by_energy.is_empty() {
+        eprintln!(
+            "cagerank: note: ranked by the tight-binding energies stored for charge {charge:+} ({} relaxed)",
+            by_energy.len()
+        );
+        by_energy.into_iter().take(k).cloned().collect()
+    } else if charge != 0 {
+        eprintln!(
+            "cagerank: note: no energies stored for charge {charge:+}: ranked by the screening order of the cage ion (run `cagerank screen` to rank by energy)"
+        );
+        screen::select(dir, &screen_spec)
+            .map_err(super::screen::screen_error)?
+            .into_iter()
+            .take(k)
+            .map(|c| c.record)
+            .collect()
+    } else {
+        let q = Query {
+            atoms: spec.atoms,
+            face_set: FaceSet::Fullerene,
+            ipr: spec.ipr,
+            charge: 0,
+            filter: Filter::default(),
+            rank_by: Vec::new(),
+            top: Some(k),
+        };
+        query(dir, &q).map_err(super::query::catalogue_error)?
+    };
     records
         .iter()
         .map(|r| {
@@ -338,8 +381,39 @@ fn from_catalogue(dir: &Path, spec: &Spec, k: usize) -> Result<Vec<Pick>, CliErr
         .collect()
 }
 
+/// Replaces the force-field geometry by the tight-binding one where a screen of the entry's
+/// list and charge stored it in `dir`.
+fn attach_tight_binding(entry: &mut Entry, dir: &Path) -> Result<(), CliError> {
+    let key = EnergyHeader {
+        face_set: FaceSet::Fullerene,
+        atoms: entry.id.atoms,
+        ipr: entry.id.list.is_ipr(),
+        charge: entry.charge,
+        model: screen::MODEL.to_string(),
+        max_force: 0.0,
+        made_by: String::new(),
+    };
+    let Some(stored) = energies::read(dir, &key).map_err(super::query::catalogue_error)? else {
+        return Ok(());
+    };
+    let faces = catalogue::record::special_faces_of(&entry.spiral);
+    if let Some(e) = stored
+        .get(entry.id.number)
+        .filter(|e| e.special_faces == faces && e.rankable())
+    {
+        let tb = TightBinding {
+            energy_ev: e.energy_ev,
+            relative_kj: stored.relative_kj(e),
+            gap_ev: e.gap_ev,
+            max_force: e.max_force,
+        };
+        entry.use_tight_binding(e.coords.clone(), tb);
+    }
+    Ok(())
+}
+
 /// Enumerates the size, scores every isomer and keeps the K best by the default rank.
-fn by_enumeration(spec: &Spec, k: usize) -> Result<Vec<Pick>, CliError> {
+fn by_enumeration(spec: &Spec, k: usize, charge: i32) -> Result<Vec<Pick>, CliError> {
     let mut isomers = Vec::new();
     let bar = super::progress::bar(0, &format!("C{} enumerate", spec.atoms), false);
     enumerate::enumerate(
@@ -358,7 +432,7 @@ fn by_enumeration(spec: &Spec, k: usize) -> Result<Vec<Pick>, CliError> {
     let mut bar = LazyBar::new(format!("C{} score", spec.atoms));
     let mut described = Vec::with_capacity(spirals.len());
     for slice in spirals.chunks(4096) {
-        described.extend(score::describe_all(slice, 0));
+        described.extend(score::describe_all(slice, charge));
         bar.update(described.len(), spirals.len());
     }
     bar.finish();

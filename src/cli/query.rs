@@ -6,6 +6,7 @@
 use super::output::{write_line, Out};
 use super::CliError;
 use cagerank::cage::FaceSet;
+use cagerank::catalogue::energies::{self, Energies, EnergyHeader, EnergyRecord};
 use cagerank::catalogue::record::shell_from_name;
 use cagerank::catalogue::{self, CatalogueError, Filter, PointGroup, Query, Record};
 use cagerank::score::nmr::{format_pattern, parse_pattern};
@@ -47,8 +48,10 @@ pub struct Args {
     /// Show only the best K.
     #[arg(long, value_name = "K")]
     pub top: Option<usize>,
-    /// Sort keys, e.g. pentagon_adjacencies,-gap ('-' = largest first) [default: the screening order].
-    #[arg(long, value_name = "KEY,...")]
+    /// Sort keys, e.g. pentagon_adjacencies,-gap ('-' = largest first) [default: the screening
+    /// order]. `relative_energy_kj` ranks by the tight-binding energies `cagerank screen` stored
+    /// (isomers without one come last, and the other keys break ties).
+    #[arg(long, value_name = "KEY,...", allow_hyphen_values = true)]
     pub rank_by: Option<String>,
     /// Keep cages with at most this many pentagon adjacencies.
     #[arg(long, value_name = "N")]
@@ -148,8 +151,9 @@ fn build_query(args: &Args) -> Result<Query, CliError> {
         (_, true) => Some(false),
         _ => None,
     };
-    let rank_by = match &args.rank_by {
-        Some(text) => parse_keys(text).map_err(|e| CliError::usage(e.to_string()))?,
+    let rank_by = match args.rank_by.as_deref().map(split_energy_key) {
+        Some((_, rest)) if rest.is_empty() => Vec::new(),
+        Some((_, rest)) => parse_keys(&rest).map_err(|e| CliError::usage(e.to_string()))?,
         None => Vec::new(),
     };
     Ok(Query {
@@ -173,17 +177,116 @@ fn build_query(args: &Args) -> Result<Query, CliError> {
     })
 }
 
+/// The key that ranks by stored tight-binding energies (not a catalogue column).
+const ENERGY_KEY: &str = "relative_energy_kj";
+
+/// Splits `relative_energy_kj` (with its sign) out of a `--rank-by` list: whether it was there
+/// and descending, and the other keys in their order.
+fn split_energy_key(text: &str) -> (Option<bool>, String) {
+    let mut energy = None;
+    let mut rest = Vec::new();
+    for key in text.split(',').map(str::trim).filter(|k| !k.is_empty()) {
+        let descending = key.starts_with('-');
+        if key.trim_start_matches(['-', '+']) == ENERGY_KEY {
+            energy.get_or_insert(descending);
+        } else {
+            rest.push(key);
+        }
+    }
+    (energy, rest.join(","))
+}
+
+/// Stored tight-binding energies of the queried run, joined to records by list number.
+struct EnergyColumn {
+    energies: Option<Energies>,
+    ipr: bool,
+}
+
+impl EnergyColumn {
+    fn read(dir: &std::path::Path, q: &Query) -> Result<EnergyColumn, CliError> {
+        let key = EnergyHeader {
+            face_set: q.face_set,
+            atoms: q.atoms,
+            ipr: q.ipr,
+            charge: q.charge,
+            model: cagerank::screen::MODEL.to_string(),
+            max_force: 0.0,
+            made_by: String::new(),
+        };
+        let energies = energies::read(dir, &key).map_err(catalogue_error)?;
+        Ok(EnergyColumn {
+            energies,
+            ipr: q.ipr,
+        })
+    }
+
+    /// The stored result for `r`, if its spiral matches the one stored under its number.
+    fn get(&self, r: &Record) -> Option<(&EnergyRecord, Option<f64>)> {
+        let energies = self.energies.as_ref()?;
+        let number = if self.ipr { r.ipr_number } else { r.number }?;
+        let e = energies
+            .get(number)
+            .filter(|e| e.special_faces == r.special_faces)?;
+        Some((e, energies.relative_kj(e)))
+    }
+
+    fn relative_kj(&self, r: &Record) -> Option<f64> {
+        self.get(r).and_then(|(_, rel)| rel)
+    }
+
+    fn is_empty(&self) -> bool {
+        self.energies.as_ref().is_none_or(|e| e.records.is_empty())
+    }
+}
+
 pub fn run(args: Args) -> Result<(), CliError> {
-    let query = build_query(&args)?;
+    let mut query = build_query(&args)?;
+    if args.top == Some(0) {
+        return Err(CliError::usage(
+            "--top 0 would show nothing; give K >= 1 or leave it out",
+        ));
+    }
     let dir = catalogue_dir(&args.catalogue);
-    let records = catalogue::query(&dir, &query).map_err(catalogue_error)?;
+    let by_energy = args.rank_by.as_deref().and_then(|t| split_energy_key(t).0);
+    if by_energy.is_some() {
+        query.top = None;
+    }
+    let mut records = catalogue::query(&dir, &query).map_err(catalogue_error)?;
+    let energy = EnergyColumn::read(&dir, &query)?;
+    if let Some(descending) = by_energy {
+        if energy.is_empty() {
+            return Err(CliError::usage(format!(
+                "no tight-binding energies are stored for C{} ({} list, charge {:+}) in {}; run `cagerank screen --atoms {}{}{} --catalogue {}` first",
+                query.atoms,
+                if query.ipr { "IPR" } else { "complete" },
+                query.charge,
+                dir.display(),
+                query.atoms,
+                if query.ipr { " --ipr" } else { "" },
+                if query.charge == 0 { String::new() } else { format!(" --charge {}", query.charge) },
+                dir.display()
+            )));
+        }
+        // Stable: records with equal (or no) energy keep the order of the other keys.
+        records.sort_by(
+            |a, b| match (energy.relative_kj(a), energy.relative_kj(b)) {
+                (Some(x), Some(y)) if descending => y.total_cmp(&x),
+                (Some(x), Some(y)) => x.total_cmp(&y),
+                (Some(_), None) => std::cmp::Ordering::Less,
+                (None, Some(_)) => std::cmp::Ordering::Greater,
+                (None, None) => std::cmp::Ordering::Equal,
+            },
+        );
+        records.truncate(args.top.unwrap_or(usize::MAX));
+    }
     let mut out = Out::stdout();
     // Every record of one run has the same electron count, so the SOMO column is all or none.
     let somo = records.iter().any(|r| r.somo.is_some());
+    let energy = (!energy.is_empty()).then_some(&energy);
     match args.format {
-        Format::Table => print_table(&mut out, &records, somo)?,
-        Format::Csv => print_csv(&mut out, &records, somo)?,
-        Format::Json => print_json(&mut out, &records)?,
+        Format::Table => print_table(&mut out, &records, somo, energy)?,
+        Format::Csv => print_csv(&mut out, &records, somo, energy)?,
+        Format::Json => print_json(&mut out, &records, energy)?,
     }
     if args.format == Format::Table {
         write_line(&mut out, CAUTION)?;
@@ -191,10 +294,6 @@ pub fn run(args: Args) -> Result<(), CliError> {
         eprintln!("{CAUTION}");
     }
     out.finish()
-}
-
-fn number_text(n: Option<u64>) -> String {
-    n.map_or("-".to_string(), |n| n.to_string())
 }
 
 /// Column names; `somo` is shown only for runs with an odd electron count.
@@ -218,16 +317,32 @@ const COLUMNS: [&str; 14] = [
 /// Index of the `somo` column in [`COLUMNS`].
 const SOMO: usize = 8;
 
-fn columns(somo: bool) -> Vec<&'static str> {
-    COLUMNS
+/// Columns added when the run has stored tight-binding energies.
+const ENERGY_COLUMNS: [&str; 2] = ["relative_energy_kj", "tb_gap_ev"];
+
+fn columns(somo: bool, energy: Option<&EnergyColumn>) -> Vec<&'static str> {
+    let mut names: Vec<&str> = COLUMNS
         .iter()
         .enumerate()
         .filter(|&(i, _)| somo || i != SOMO)
         .map(|(_, c)| *c)
-        .collect()
+        .collect();
+    if energy.is_some() {
+        names.splice(5..5, ENERGY_COLUMNS);
+    }
+    names
 }
 
-fn cells(rank: usize, r: &Record, somo: bool) -> Vec<String> {
+/// One row's cells; `missing` is written for values a record does not have ("-" in tables, an
+/// empty cell in CSV so that numeric columns stay numeric).
+fn cells(
+    rank: usize,
+    r: &Record,
+    somo: bool,
+    energy: Option<&EnergyColumn>,
+    missing: &str,
+) -> Vec<String> {
+    let number_text = |n: Option<u64>| n.map_or(missing.to_string(), |n| n.to_string());
     let all: [String; 14] = [
         rank.to_string(),
         number_text(r.number),
@@ -237,27 +352,42 @@ fn cells(rank: usize, r: &Record, somo: bool) -> Vec<String> {
         r.shell.name().to_string(),
         format!("{:.4}", r.hexagon_strain),
         format!("{:.4}", r.gap),
-        r.somo.map_or("-".to_string(), |x| format!("{x:.4}")),
+        r.somo.map_or(missing.to_string(), |x| format!("{x:.4}")),
         format!("{:.4}", r.pi_energy),
         r.kekule.to_string(),
         r.chiral.to_string(),
         format_pattern(&r.nmr),
         r.spiral_text(),
     ];
-    all.into_iter()
+    let mut row: Vec<String> = all
+        .into_iter()
         .enumerate()
         .filter(|&(i, _)| somo || i != SOMO)
         .map(|(_, c)| c)
-        .collect()
+        .collect();
+    if let Some(energy) = energy {
+        let stored = energy.get(r);
+        let rel = stored
+            .and_then(|(_, rel)| rel)
+            .map_or(missing.to_string(), |v| format!("{v:.1}"));
+        let gap = stored.map_or(missing.to_string(), |(e, _)| format!("{:.3}", e.gap_ev));
+        row.splice(5..5, [rel, gap]);
+    }
+    row
 }
 
-fn print_table(out: &mut Out, records: &[Record], somo: bool) -> Result<(), CliError> {
+fn print_table(
+    out: &mut Out,
+    records: &[Record],
+    somo: bool,
+    energy: Option<&EnergyColumn>,
+) -> Result<(), CliError> {
     let rows: Vec<Vec<String>> = records
         .iter()
         .enumerate()
-        .map(|(i, r)| cells(i + 1, r, somo))
+        .map(|(i, r)| cells(i + 1, r, somo, energy, "-"))
         .collect();
-    let names = columns(somo);
+    let names = columns(somo, energy);
     let mut widths: Vec<usize> = names.iter().map(|c| c.len()).collect();
     for row in &rows {
         for (w, cell) in widths.iter_mut().zip(row) {
@@ -291,21 +421,43 @@ fn csv_field(s: &str) -> String {
     }
 }
 
-fn print_csv(out: &mut Out, records: &[Record], somo: bool) -> Result<(), CliError> {
-    write_line(out, &columns(somo).join(","))?;
+fn print_csv(
+    out: &mut Out,
+    records: &[Record],
+    somo: bool,
+    energy: Option<&EnergyColumn>,
+) -> Result<(), CliError> {
+    write_line(out, &columns(somo, energy).join(","))?;
     for (i, r) in records.iter().enumerate() {
-        let row: Vec<String> = cells(i + 1, r, somo).iter().map(|c| csv_field(c)).collect();
+        let row: Vec<String> = cells(i + 1, r, somo, energy, "")
+            .iter()
+            .map(|c| csv_field(c))
+            .collect();
         write_line(out, &row.join(","))?;
     }
     Ok(())
 }
 
-fn print_json(out: &mut Out, records: &[Record]) -> Result<(), CliError> {
+fn print_json(
+    out: &mut Out,
+    records: &[Record],
+    energy: Option<&EnergyColumn>,
+) -> Result<(), CliError> {
     for (i, r) in records.iter().enumerate() {
         let mut scored = r.to_scored();
         scored.rank = Some(i as u64 + 1);
-        let text = serde_json::to_string(&scored)
+        let mut value = serde_json::to_value(&scored)
             .map_err(|e| CliError::failed(format!("cannot encode JSON: {e}")))?;
+        if let (Some(energy), Some(map)) = (energy, value.as_object_mut()) {
+            let stored = energy.get(r);
+            map.insert("energy_ev".into(), stored.map(|(e, _)| e.energy_ev).into());
+            map.insert(
+                "relative_energy_kj".into(),
+                stored.and_then(|(_, rel)| rel).into(),
+            );
+            map.insert("tb_gap_ev".into(), stored.map(|(e, _)| e.gap_ev).into());
+        }
+        let text = value.to_string();
         write_line(out, &text)?;
     }
     Ok(())

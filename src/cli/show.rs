@@ -1,29 +1,37 @@
-//! `cagerank show`: every descriptor of one isomer, named by its number (`C84:23`) or spiral.
+//! `cagerank show`: every descriptor of one isomer, named by its ID (`C84:IPR-23`) or spiral,
+//! with its stored tight-binding energy when the catalogue has one.
 //!
-//! Looks the isomer up with the enumerator, asks `score::full_record` for the numbers and prints
-//! them as a text block or one JSON object. The science lives in the library.
+//! Looks the isomer up through `identify::numbers` (a catalogue index when one holds the size,
+//! else a search that stops at the isomer), asks `score::full_record` for the numbers and prints
+//! them grouped under topology, electronic structure, symmetry and energies, or as one JSON
+//! object. The science lives in the library.
 
 use super::output::{counted, write_line, Out};
+use super::query::{catalogue_dir, catalogue_error};
 use super::CliError;
-use cagerank::enumerate::{self, Spec};
+use cagerank::cage::FaceSet;
+use cagerank::catalogue::energies::{self, EnergyHeader, EnergyRecord};
+use cagerank::enumerate;
+use cagerank::id::{IsomerId, List};
 use cagerank::score::{self, nmr, Descriptors, FullRecord, ScoreError};
 use cagerank::spiral::{canonical_spiral, Spiral};
+use std::path::{Path, PathBuf};
 
 /// Shown with every ranking-related output (text after the block, stderr with `--json`).
-const CAUTION: &str = "Caution: these descriptors and any ranking built from them are screening \
-heuristics, not predictions of real-world stability or safety; refine candidates with quantum \
-chemistry.";
+const CAUTION: &str = "Caution: these descriptors, energies and any ranking built from them are \
+screening heuristics, not predictions of real-world stability or safety; refine candidates with \
+quantum chemistry.";
 
 /// Show every descriptor of one isomer.
 ///
 /// Descriptors are screening heuristics, not predictions of stability or safety.
 #[derive(clap::Args, Debug)]
 pub struct Args {
-    /// The isomer: `C84:23` (number in the complete list, or in the IPR list with --ipr), or just
-    /// the size `C60` together with --spiral.
+    /// The isomer: `C84:IPR-23` (IPR list), `C84:all-51591` (complete list), a bare `C84:23`
+    /// (complete list, or the IPR list with --ipr), or just the size `C60` with --spiral.
     #[arg(value_name = "ID")]
     pub id: String,
-    /// Read the number in ID as a position in the IPR list.
+    /// Read a bare number in ID as a position in the IPR list.
     #[arg(long)]
     pub ipr: bool,
     /// The 12 pentagon positions of a spiral of this size, comma-separated (e.g. 1,7,9,...).
@@ -31,6 +39,10 @@ pub struct Args {
     pub spiral: Option<String>,
     #[command(flatten)]
     pub charge: super::ChargeArg,
+    /// Catalogue to look numbers and stored energies up in [default: $CAGERANK_CATALOGUE, else
+    /// ./catalogues].
+    #[arg(long, value_name = "DIR")]
+    pub catalogue: Option<PathBuf>,
     /// One JSON object with every descriptor and the per-bond and per-ring arrays.
     #[arg(long)]
     pub json: bool,
@@ -40,34 +52,41 @@ pub struct Args {
 }
 
 pub fn run(args: Args) -> Result<(), CliError> {
-    let (atoms, number) = parse_id(&args.id)?;
-    let (spiral, number, ipr_number) = match (&args.spiral, number) {
+    let dir = catalogue_dir(&args.catalogue);
+    let (atoms, id) = parse_id(&args.id, args.ipr)?;
+    let (spiral, number, ipr_number) = match (&args.spiral, id) {
         (Some(list), None) => from_spiral(atoms, list, &args)?,
-        (None, Some(n)) => from_number(atoms, n, &args)?,
+        (None, Some(id)) => from_id(id, &dir, &args)?,
         (Some(_), Some(_)) => return Err(CliError::usage(
-            "give either a number (C84:23) or --spiral with a size (C84 --spiral ...), not both",
+            "give either an ID (C84:IPR-23) or --spiral with a size (C84 --spiral ...), not both",
         )),
         (None, None) => {
             return Err(CliError::usage(format!(
-                "'{}' names a size but no isomer; write C{atoms}:N or add --spiral 1,7,9,...",
-                args.id
+                "'{}' names a size but no isomer; write C{atoms}:IPR-N or C{atoms}:all-N, or add --spiral 1,7,9,...",
+                cagerank::id::printable(&args.id)
             )))
         }
     };
-    let record = score::full_record(&spiral, number, ipr_number, args.charge.charge).map_err(
-        |e| match e {
-            ScoreError::Charge(_) => CliError::usage(e.to_string()),
-            _ => CliError::failed(e.to_string()),
-        },
-    )?;
+    let charge = args.charge.charge;
+    let record = score::full_record(&spiral, number, ipr_number, charge).map_err(|e| match e {
+        ScoreError::Charge(_) => CliError::usage(e.to_string()),
+        _ => CliError::failed(e.to_string()),
+    })?;
+    let stored = stored_energy(&dir, &record, charge)?;
     let mut out = Out::stdout();
     if args.json {
-        let text = serde_json::to_string(&record)
+        let mut value = serde_json::to_value(&record)
             .map_err(|e| CliError::failed(format!("cannot encode JSON: {e}")))?;
-        write_line(&mut out, &text)?;
+        if let (Some(map), Some(s)) = (value.as_object_mut(), &stored) {
+            map.insert("energy_ev".into(), s.record.energy_ev.into());
+            map.insert("relative_energy_kj".into(), s.relative_kj.into());
+            map.insert("tb_gap_ev".into(), s.record.gap_ev.into());
+            map.insert("energy_list".into(), s.list.tag().into());
+        }
+        write_line(&mut out, &value.to_string())?;
         eprintln!("{CAUTION}");
     } else {
-        for line in text_block(&record, &spiral, args.charge.charge) {
+        for line in text_block(&record, &spiral, charge, stored.as_ref()) {
             write_line(&mut out, &line)?;
         }
         write_line(&mut out, CAUTION)?;
@@ -75,27 +94,22 @@ pub fn run(args: Args) -> Result<(), CliError> {
     out.finish()
 }
 
-/// Splits `C84:23` (or `84:23`, or `C84`) into the atom count and the optional number.
-fn parse_id(text: &str) -> Result<(u64, Option<u64>), CliError> {
-    let bad = || {
-        CliError::usage(format!(
-            "'{text}' is not an isomer ID; write the size and number like C84:23, or C84 with --spiral"
-        ))
-    };
-    let body = text.trim().trim_start_matches(['C', 'c']);
-    let (size, number) = match body.split_once(':') {
-        Some((s, n)) => (s, Some(n)),
-        None => (body, None),
-    };
-    let atoms: u64 = size.trim().parse().map_err(|_| bad())?;
-    let number = match number {
-        Some(n) => match n.trim().parse::<u64>() {
-            Ok(k) if k >= 1 => Some(k),
-            _ => return Err(bad()),
-        },
-        None => None,
-    };
-    Ok((atoms, number))
+/// Splits `C84:IPR-23`, `C84:23` (list from `--ipr`) or a bare size `C84` into the atom count
+/// and the optional ID.
+fn parse_id(text: &str, ipr: bool) -> Result<(u64, Option<IsomerId>), CliError> {
+    if text.contains([':', '_']) {
+        let id = IsomerId::parse(text, Some(List::from_ipr(ipr)))
+            .map_err(|e| CliError::usage(e.to_string()))?;
+        return Ok((u64::from(id.atoms), Some(id)));
+    }
+    let size = text.trim().trim_start_matches(['C', 'c']);
+    match size.parse::<u64>() {
+        Ok(atoms) if size.bytes().all(|b| b.is_ascii_digit()) => Ok((atoms, None)),
+        _ => Err(CliError::usage(format!(
+            "'{}' is not an isomer ID; write C84:IPR-23 or C84:all-23, or a size like C84 with --spiral",
+            cagerank::id::printable(text)
+        ))),
+    }
 }
 
 type Located = (Spiral, Option<u64>, Option<u64>);
@@ -124,41 +138,81 @@ fn from_spiral(atoms: u64, list: &str, args: &Args) -> Result<Located, CliError>
     Ok((canonical, number, ipr_number))
 }
 
-/// Largest size whose complete list `show` enumerates to find a number (C70 takes about half a
-/// minute); beyond it the complete-list number is left out and a note says how to get it.
+/// Largest size whose complete list `show` searches to find a number when no catalogue holds
+/// it (C70 takes seconds); beyond it the number is left out and a note says how to get it.
 const COMPLETE_LIST_LIMIT: u64 = 70;
 
 fn complete_number(spiral: &Spiral, atoms: u64) -> Option<u64> {
     if atoms > COMPLETE_LIST_LIMIT {
-        eprintln!(
-            "cagerank: note: the complete-list number of a C{atoms} isomer needs the whole list; \
-             run `cagerank enumerate {atoms} --catalogue` and `cagerank query --atoms {atoms}`"
-        );
+        complete_number_note(atoms);
         return None;
     }
     enumerate::list_number_of(spiral, false).ok().flatten()
 }
 
-/// Finds isomer `number` of the complete (or IPR) list of C`atoms` by enumeration.
-fn from_number(atoms: u64, number: u64, args: &Args) -> Result<Located, CliError> {
-    let spec = Spec::fullerene(atoms, args.ipr).map_err(|e| CliError::usage(e.to_string()))?;
-    let list = if args.ipr {
-        "IPR list"
-    } else {
-        "complete list"
-    };
-    let isomer = enumerate::find_by_number(&spec, number).ok_or_else(|| {
-        CliError::usage(format!(
-            "C{atoms} has no isomer {number} in the {list}; numbers start at 1 and end at the \
-             count that `cagerank enumerate --count-only {atoms}` reports"
-        ))
-    })?;
-    let number = match isomer.number {
-        Some(n) => Some(n),
-        None if !args.no_numbers => complete_number(&isomer.spiral, atoms),
-        None => None,
-    };
-    Ok((isomer.spiral, number, isomer.ipr_number))
+fn complete_number_note(atoms: u64) {
+    eprintln!(
+        "cagerank: note: the complete-list number of a C{atoms} isomer needs the whole list; \
+         run `cagerank enumerate {atoms} --catalogue` once and `show` reads it from there"
+    );
+}
+
+/// Finds the isomer named by `id`: by index in a catalogue that holds its list, else by a search
+/// that stops at it (with a progress bar on a terminal).
+fn from_id(id: IsomerId, dir: &Path, args: &Args) -> Result<Located, CliError> {
+    let both = !args.no_numbers && u64::from(id.atoms) <= COMPLETE_LIST_LIMIT;
+    let catalogue = dir.is_dir().then_some(dir);
+    let (spiral, numbers) = super::export::locate(id, catalogue, both)?;
+    if !args.no_numbers && numbers.number.is_none() && id.list.is_ipr() {
+        complete_number_note(u64::from(id.atoms));
+    }
+    Ok((spiral, numbers.number, numbers.ipr_number))
+}
+
+/// A stored tight-binding result for the shown isomer and charge.
+struct Stored {
+    record: EnergyRecord,
+    relative_kj: Option<f64>,
+    /// The list whose screen stored it (relative energies are within that list).
+    list: List,
+    /// How many isomers of that list have stored energies.
+    relaxed: usize,
+}
+
+/// The isomer's stored energy for `charge`, from the IPR list's screen if there is one, else
+/// the complete list's.
+fn stored_energy(dir: &Path, r: &FullRecord, charge: i32) -> Result<Option<Stored>, CliError> {
+    if !dir.is_dir() {
+        return Ok(None);
+    }
+    let spiral_faces = r.spiral.iter().map(|&p| (p, 5u8)).collect::<Vec<_>>();
+    for (list, number) in [(List::Ipr, r.ipr_number), (List::All, r.number)] {
+        let Some(number) = number else { continue };
+        let key = EnergyHeader {
+            face_set: FaceSet::Fullerene,
+            atoms: r.atoms as u32,
+            ipr: list.is_ipr(),
+            charge,
+            model: cagerank::screen::MODEL.to_string(),
+            max_force: 0.0,
+            made_by: String::new(),
+        };
+        let Some(energies) = energies::read(dir, &key).map_err(catalogue_error)? else {
+            continue;
+        };
+        if let Some(e) = energies
+            .get(number)
+            .filter(|e| e.special_faces == spiral_faces)
+        {
+            return Ok(Some(Stored {
+                record: e.clone(),
+                relative_kj: energies.relative_kj(e),
+                list,
+                relaxed: energies.records.len(),
+            }));
+        }
+    }
+    Ok(None)
 }
 
 fn parse_indices(list: &str) -> Result<Vec<u64>, CliError> {
@@ -174,40 +228,167 @@ fn parse_indices(list: &str) -> Result<Vec<u64>, CliError> {
         .collect()
 }
 
-/// The human-readable block, one string per line.
-fn text_block(r: &FullRecord, spiral: &Spiral, charge: i32) -> Vec<String> {
+/// The human-readable block, one string per line, grouped under our own headings with units in
+/// the labels.
+fn text_block(
+    r: &FullRecord,
+    spiral: &Spiral,
+    charge: i32,
+    stored: Option<&Stored>,
+) -> Vec<String> {
     let d = &r.descriptors;
-    let number = r.number.map_or("?".to_string(), |n| n.to_string());
-    let ipr = r
-        .ipr_number
-        .map_or(String::new(), |n| format!(" (IPR list: {n})"));
+    let atoms = r.atoms as u32;
+    let ids: Vec<String> = [(List::All, r.number), (List::Ipr, r.ipr_number)]
+        .iter()
+        .filter_map(|&(list, n)| n.map(|n| IsomerId::new(atoms, list, n).to_string()))
+        .collect();
+    let ids = if ids.is_empty() {
+        format!("C{atoms} (number not looked up)")
+    } else {
+        ids.join(" = ")
+    };
     let hexagons: u32 = d.hexagon_neighbours.iter().sum();
-    vec![
-        format!("C{}:{number}{ipr}  {}", r.atoms, d.point_group),
-        format!("spiral                {spiral}"),
-        format!(
-            "cage                  {} atoms, {} bonds, {} rings ({} pentagons, {hexagons} hexagons)",
-            r.atoms,
-            r.edges.len(),
-            r.faces.len(),
-            r.faces.iter().filter(|f| f.len() == 5).count(),
+    let row = |label: &str, value: String| format!("  {label:<31}{value}");
+    let mut lines = vec![
+        format!("{ids}  {}  charge {charge:+}", d.point_group),
+        "identity".to_string(),
+        row("IDs", ids.clone()),
+        row("canonical spiral", spiral.to_string()),
+        "topology".to_string(),
+        row(
+            "atoms, bonds, rings",
+            format!(
+                "{}, {}, {} ({} pentagons, {hexagons} hexagons)",
+                r.atoms,
+                r.edges.len(),
+                r.faces.len(),
+                r.faces.iter().filter(|f| f.len() == 5).count(),
+            ),
         ),
-        format!("symmetry              {}", symmetry_text(d)),
-        format!("13C NMR pattern       {}", nmr_text(&d.nmr)),
-        format!(
-            "pentagon adjacencies  {} (penalty estimate {:.0} kJ/mol at 90 per adjacency)",
-            d.pentagon_adjacencies, d.pentagon_penalty_kj
+        row(
+            "pentagon adjacencies",
+            format!(
+                "{} (penalty estimate {:.0} kJ/mol at 90 kJ/mol each)",
+                d.pentagon_adjacencies, d.pentagon_penalty_kj
+            ),
         ),
-        format!(
-            "hexagon neighbours    k=0..6: {:?}, strain (std. dev. of k) {:.4}",
-            d.hexagon_neighbours, d.hexagon_strain
+        row(
+            "hexagon neighbours k=0..6",
+            format!(
+                "{:?}, strain (std. dev. of k) {:.4}",
+                d.hexagon_neighbours, d.hexagon_strain
+            ),
         ),
-        huckel_text(d, charge),
-        format!("Kekulé structures     {}", d.kekule),
-        format!("Pauling bond orders   {}", range_text(&r.pauling_bond_orders)),
-        format!("Coulson bond orders   {}", range_text(&r.coulson_bond_orders)),
-        format!("ring pi content       {}", ring_text(r)),
-    ]
+        row("Kekulé structures", d.kekule.to_string()),
+        row("Pauling bond orders", range_text(&r.pauling_bond_orders)),
+        row("ring pi content (electrons)", ring_text(r)),
+        format!("electronic structure (Hückel, charge {charge:+})"),
+    ];
+    lines.extend(huckel_rows(d).into_iter().map(|(l, v)| row(l, v)));
+    lines.push(row(
+        "Coulson bond orders",
+        range_text(&r.coulson_bond_orders),
+    ));
+    lines.push("symmetry".to_string());
+    lines.push(row("point group", symmetry_text(d)));
+    lines.push(row("13C NMR pattern", nmr_text(&d.nmr)));
+    lines.push(format!(
+        "energies (tight binding, Xu et al. 1992, charge {charge:+})"
+    ));
+    match stored {
+        Some(s) => lines.extend(energy_rows(s, r.atoms).into_iter().map(|(l, v)| row(l, v))),
+        None => lines.push(row(
+            "not computed",
+            format!(
+                "run `cagerank screen --atoms {}{}{}` or `cagerank energy {}`",
+                r.atoms,
+                if d.pentagon_adjacencies == 0 {
+                    " --ipr"
+                } else {
+                    ""
+                },
+                if charge == 0 {
+                    String::new()
+                } else {
+                    format!(" --charge {charge}")
+                },
+                ids.split(" = ").next().unwrap_or_default()
+            ),
+        )),
+    }
+    lines
+}
+
+/// Frontier orbitals, shell and pi energy, in units of |beta|.
+fn huckel_rows(d: &Descriptors) -> Vec<(&'static str, String)> {
+    let mut rows = match d.somo {
+        None => vec![(
+            "HOMO, LUMO, gap (|beta|)",
+            format!("{:.4}, {:.4}, {:.4}", d.homo, d.lumo, d.gap),
+        )],
+        Some(somo) => vec![
+            (
+                "HOMO, SOMO, LUMO (|beta|)",
+                format!("{:.4}, {somo:.4}, {:.4}", d.homo, d.lumo),
+            ),
+            (
+                "SOMO-LUMO, HOMO-SOMO (|beta|)",
+                format!("{:.4}, {:.4}", d.gap, d.homo - somo),
+            ),
+        ],
+    };
+    rows.push(("shell", d.shell.name().to_string()));
+    rows.push(("pi energy (|beta|/atom)", format!("{:.4}", d.pi_energy)));
+    rows
+}
+
+/// The stored tight-binding result.
+fn energy_rows(s: &Stored, atoms: usize) -> Vec<(&'static str, String)> {
+    let e = &s.record;
+    let mut rows = vec![(
+        "total (eV)",
+        format!(
+            "{:.4} ({:.5} per atom)",
+            e.energy_ev,
+            e.energy_ev / atoms as f64
+        ),
+    )];
+    rows.push((
+        "relative (kJ/mol)",
+        match s.relative_kj {
+            Some(rel) => format!(
+                "{rel:.1} (0 = the lowest of the {} relaxed in the {})",
+                s.relaxed,
+                s.list.words()
+            ),
+            None => "not ranked (rearranged or not converged)".to_string(),
+        },
+    ));
+    rows.push(match e.somo {
+        Some([level, below, above]) => (
+            "SOMO; gaps below, above (eV)",
+            format!("{level:.4}; {below:.4}, {above:.4}"),
+        ),
+        None => (
+            "HOMO, LUMO, gap (eV)",
+            format!("{:.4}, {:.4}, {:.4}", e.homo_ev, e.lumo_ev, e.gap_ev),
+        ),
+    });
+    rows.push((
+        "max residual force (eV/Å)",
+        format!(
+            "{:.1e}, {} after {} iterations, bond graph {}",
+            e.max_force,
+            if e.converged {
+                "converged"
+            } else {
+                "not converged"
+            },
+            e.iterations,
+            if e.graph_kept { "kept" } else { "CHANGED" }
+        ),
+    ));
+    rows
 }
 
 /// "D5h, 20 automorphisms, achiral" (shared with `identify`).
@@ -216,29 +397,6 @@ pub(super) fn symmetry_text(d: &Descriptors) -> String {
     format!(
         "{}, {} automorphisms, {chirality}",
         d.point_group, d.automorphisms
-    )
-}
-
-/// The frontier orbitals: HOMO, LUMO and gap, or for an odd electron count HOMO, SOMO, LUMO
-/// and the gaps on either side of the SOMO.
-fn huckel_text(d: &Descriptors, charge: i32) -> String {
-    let levels = match d.somo {
-        None => format!(
-            "HOMO {:.4}, LUMO {:.4}, gap {:.4} |beta|",
-            d.homo, d.lumo, d.gap
-        ),
-        Some(somo) => format!(
-            "HOMO {:.4}, SOMO {somo:.4}, LUMO {:.4}; SOMO-LUMO gap {:.4}, HOMO-SOMO gap {:.4} |beta|",
-            d.homo,
-            d.lumo,
-            d.gap,
-            d.homo - somo
-        ),
-    };
-    format!(
-        "Hückel (charge {charge:+})    {levels}, {}, pi energy {:.4} |beta|/atom",
-        d.shell.name(),
-        d.pi_energy
     )
 }
 
@@ -287,11 +445,16 @@ mod tests {
 
     #[test]
     fn ids_parse_or_fail_cleanly() {
-        assert_eq!(parse_id("C84:23").unwrap(), (84, Some(23)));
-        assert_eq!(parse_id("60").unwrap(), (60, None));
-        assert!(parse_id("C84:0").is_err());
-        assert!(parse_id("C84:x").is_err());
-        assert!(parse_id("fullerene").is_err());
-        assert_eq!(parse_id("C84:-1").unwrap_err().code, 2);
+        let (atoms, id) = parse_id("C84:23", true).unwrap();
+        assert_eq!((atoms, id), (84, Some(IsomerId::new(84, List::Ipr, 23))));
+        assert_eq!(
+            parse_id("C84:all-23", false).unwrap().1.unwrap().list,
+            List::All
+        );
+        assert_eq!(parse_id("60", false).unwrap(), (60, None));
+        assert!(parse_id("C84:0", false).is_err());
+        assert!(parse_id("C84:x", false).is_err());
+        assert!(parse_id("fullerene", false).is_err());
+        assert_eq!(parse_id("C84:-1", false).unwrap_err().code, 2);
     }
 }

@@ -28,8 +28,8 @@ use std::path::{Path, PathBuf};
 
 /// The caution carried by every exported file and drawing.
 pub const CAUTION: &str = "Rankings are screening heuristics, not predictions of safety or \
-real-world stability; geometries are force-field starting points to be refined with \
-quantum-chemical methods; follow local rules and lab safety practice when handling carbon \
+real-world stability; geometries and energies (force field or tight binding) are starting \
+points to be refined with quantum-chemical methods; follow local rules and lab safety practice when handling carbon \
 nanomaterials.";
 
 /// One isomer ready to export: its cage, descriptors, geometry and one Kekulé structure.
@@ -44,9 +44,26 @@ pub struct Entry {
     pub charge: i32,
     /// The `show --json` record (descriptors, bonds, rings, spectra), atoms numbered as `cage`.
     pub record: FullRecord,
+    /// Coordinates written to every file: the force-field starting geometry, replaced by the
+    /// tight-binding one when a screen stored it (see [`Entry::use_tight_binding`]).
     pub geometry: Geometry,
+    /// The stored tight-binding result whose geometry `geometry` holds, if any.
+    pub tight_binding: Option<TightBinding>,
     /// The double bonds of one Kekulé structure (a perfect matching).
     pub kekule: Vec<EdgeId>,
+}
+
+/// What the manifest and XYZ comment say about a tight-binding geometry.
+#[derive(Debug, Clone, PartialEq)]
+pub struct TightBinding {
+    /// Total energy, eV.
+    pub energy_ev: f64,
+    /// Above the lowest relaxed isomer of the same size, list and charge, kJ/mol.
+    pub relative_kj: Option<f64>,
+    /// Tight-binding HOMO-LUMO (or SOMO-LUMO) gap, eV.
+    pub gap_ev: f64,
+    /// Largest residual force, eV/Å.
+    pub max_force: f64,
 }
 
 /// Output formats of an export.
@@ -207,11 +224,30 @@ pub fn prepare(
         charge,
         record,
         geometry,
+        tight_binding: None,
         kekule,
     })
 }
 
 impl Entry {
+    /// Writes the stored tight-binding geometry instead of the force-field one. The coordinates
+    /// must number atoms as `self.cage` does (both come from the canonical spiral).
+    pub fn use_tight_binding(&mut self, coords: Vec<[f64; 3]>, tb: TightBinding) {
+        if coords.len() == self.cage.atoms() {
+            self.geometry.coords = coords;
+            self.tight_binding = Some(tb);
+        }
+    }
+
+    /// `tight_binding` or `force_field`: which geometry the files hold.
+    pub fn geometry_source(&self) -> &'static str {
+        if self.tight_binding.is_some() {
+            "tight_binding"
+        } else {
+            "force_field"
+        }
+    }
+
     /// The stem every file of this entry shares: `C84_IPR-23`.
     pub fn stem(&self) -> String {
         self.id.file_stem()
@@ -229,10 +265,11 @@ impl Entry {
             title.push_str(&format!(" = {other}"));
         }
         format!(
-            "{title} {} charge {} multiplicity {}, cagerank force-field starting geometry",
+            "{title} {} charge {} multiplicity {}, cagerank {} geometry",
             self.record.descriptors.point_group.name(),
             self.charge,
-            self.multiplicity()
+            self.multiplicity(),
+            self.geometry_source().replace('_', "-")
         )
     }
 
@@ -272,8 +309,15 @@ pub fn comment_line(entry: &Entry) -> String {
         ("charge".to_string(), entry.charge.to_string()),
         ("multiplicity".to_string(), entry.multiplicity().to_string()),
         ("spiral".to_string(), entry.spiral.to_string()),
-        ("geometry".to_string(), "force_field".to_string()),
+        ("geometry".to_string(), entry.geometry_source().to_string()),
     ]);
+    if let Some(tb) = &entry.tight_binding {
+        pairs.push(("tb_energy_ev".into(), format!("{:.6}", tb.energy_ev)));
+        if let Some(rel) = tb.relative_kj {
+            pairs.push(("relative_energy_kj".into(), format!("{rel:.3}")));
+        }
+        pairs.push(("tb_gap_ev".into(), format!("{:.6}", tb.gap_ev)));
+    }
     pairs
         .iter()
         .map(|(k, v)| {
@@ -291,8 +335,9 @@ pub fn comment_line(entry: &Entry) -> String {
 pub fn scalar_fields(entry: &Entry) -> Vec<(String, String)> {
     let d = &entry.record.descriptors;
     let g = &entry.geometry;
+    let tb = entry.tight_binding.as_ref();
     let hexagons: Vec<String> = d.hexagon_neighbours.iter().map(u32::to_string).collect();
-    let nmr: Vec<String> = d.nmr.iter().map(|(m, c)| format!("{c}x{m}")).collect();
+
     vec![
         ("atoms".into(), entry.cage.atoms().to_string()),
         ("charge".into(), entry.charge.to_string()),
@@ -314,11 +359,29 @@ pub fn scalar_fields(entry: &Entry) -> Vec<(String, String)> {
         ("kekule".into(), d.kekule.clone()),
         ("automorphisms".into(), d.automorphisms.to_string()),
         ("chiral".into(), d.chiral.to_string()),
-        ("nmr".into(), nmr.join(" ")),
+        ("nmr".into(), crate::score::nmr::format_pattern(&d.nmr)),
         ("ff_energy_ev".into(), format!("{:.6}", g.energy_ev)),
         (
             "ff_max_force_ev_per_angstrom".into(),
             format!("{:.2e}", g.max_force_ev_per_angstrom),
+        ),
+        ("geometry".into(), entry.geometry_source().to_string()),
+        (
+            "tb_energy_ev".into(),
+            tb.map_or(String::new(), |t| format!("{:.6}", t.energy_ev)),
+        ),
+        (
+            "relative_energy_kj".into(),
+            tb.and_then(|t| t.relative_kj)
+                .map_or(String::new(), |v| format!("{v:.3}")),
+        ),
+        (
+            "tb_gap_ev".into(),
+            tb.map_or(String::new(), |t| format!("{:.6}", t.gap_ev)),
+        ),
+        (
+            "tb_max_force_ev_per_angstrom".into(),
+            tb.map_or(String::new(), |t| format!("{:.2e}", t.max_force)),
         ),
     ]
 }
@@ -352,7 +415,11 @@ pub fn write_sdf(w: &mut impl Write, entry: &Entry) -> io::Result<()> {
         w,
         &sdf::Record {
             name: &entry.id.to_string(),
-            comment: "cagerank force-field starting geometry; refine with quantum chemistry",
+            comment: if entry.tight_binding.is_some() {
+                "cagerank tight-binding geometry; refine with quantum chemistry"
+            } else {
+                "cagerank force-field starting geometry; refine with quantum chemistry"
+            },
             coords: &entry.geometry.coords,
             bonds: &bond_orders(entry),
             fields: &fields,
