@@ -47,6 +47,7 @@ pub mod model;
 pub mod occupation;
 pub mod params;
 pub mod relax;
+pub mod spectrum;
 
 pub use model::Evaluator;
 pub use relax::{keeps_graph, relax, relax_from, BOND_MAX};
