@@ -217,21 +217,18 @@ impl Eigensolver {
 
     /// Inverse iteration for the levels of block `b` among the lowest `count`; false if some
     /// vector did not converge.
-    fn block_vectors(&mut self, b: usize, count: usize, mut vectors: MatMut<'_, f64>) -> bool {
+    fn block_vectors(&mut self, b: usize, count: usize, vectors: MatMut<'_, f64>) -> bool {
         let (start, end) = (self.block_starts[b], self.block_starts[b + 1]);
-        let mut local = 0;
-        let mut ok = true;
         let inverse = &mut self.inverse;
         inverse.begin_block(&self.diag[start..end], &self.off[start..end]);
+        let mut local = 0;
         for (column, &(_, block)) in self.sorted[..count].iter().enumerate() {
-            if block != b {
-                continue;
+            if block == b {
+                inverse.add_level(self.block_levels[start + local], column);
+                local += 1;
             }
-            let level = self.block_levels[start + local];
-            local += 1;
-            ok &= inverse.vector(level, column, start, vectors.rb_mut());
         }
-        ok
+        inverse.run(start, vectors)
     }
 
     /// Every eigenvector of T (faer's divide and conquer) into `vectors`, the fallback when
@@ -287,51 +284,65 @@ fn scratch_for(dim: usize, par: Par) -> StackReq {
     evd::self_adjoint_evd_scratch::<f64>(dim, ComputeEigenvectors::Yes, par, Default::default())
 }
 
+/// Vectors computed side by side: inverse iteration is a chain of dependent divisions and
+/// multiply-adds, so four independent chains in one loop run about as fast as one.
+const LANES: usize = 4;
+
+/// One wanted level of a block: its column in the output, its shift and its cluster.
+#[derive(Debug, Clone, Copy)]
+struct Task {
+    column: usize,
+    shift: f64,
+    cluster: usize,
+}
+
 /// Inverse iteration on one unreduced block of T: the pivoted LU of T − λI (after LAPACK's
-/// `dlagtf`) and its solve.
+/// `dlagtf`) and its solve, for up to [`LANES`] shifts at once (one per lane), each from a
+/// different cluster so that the lanes never need each other's vectors.
 struct InverseIteration {
     /// The block's diagonal and off-diagonal.
     d: Vec<f64>,
     e: Vec<f64>,
-    /// U's diagonal and two superdiagonals, L's multipliers, and whether rows k, k+1 swapped.
-    u0: Vec<f64>,
-    u1: Vec<f64>,
-    u2: Vec<f64>,
-    mult: Vec<f64>,
-    inverse_pivot: Vec<f64>,
-    swapped: Vec<bool>,
-    x: Vec<f64>,
+    /// Per row and lane: U's diagonal, and its two superdiagonals divided by the diagonal; the
+    /// reciprocal of the diagonal; L's multipliers; whether rows k and k+1 were swapped.
+    u0: Vec<[f64; LANES]>,
+    u1: Vec<[f64; LANES]>,
+    u2: Vec<[f64; LANES]>,
+    inverse_pivot: Vec<[f64; LANES]>,
+    mult: Vec<[f64; LANES]>,
+    swapped: Vec<[bool; LANES]>,
+    x: Vec<[f64; LANES]>,
     /// The fixed starting vector.
     start: Vec<f64>,
-    /// Columns of the vectors already found in the current cluster.
-    cluster: Vec<usize>,
-    previous: Option<f64>,
+    tasks: Vec<Task>,
+    /// Per cluster (a run of consecutive tasks): its first task, the next to run, and the end.
+    cluster_first: Vec<usize>,
+    cursor: Vec<usize>,
+    cluster_end: Vec<usize>,
     norm: f64,
-    /// The last vector passed the growth test often enough.
-    converged: bool,
 }
 
 impl InverseIteration {
     fn new(dim: usize) -> InverseIteration {
+        let lanes = || vec![[0.0; LANES]; dim];
+        let mut start = vec![0.0; dim];
+        starting_vector(&mut start);
         InverseIteration {
             d: Vec::with_capacity(dim),
             e: Vec::with_capacity(dim),
-            u0: vec![0.0; dim],
-            u1: vec![0.0; dim],
-            u2: vec![0.0; dim],
-            mult: vec![0.0; dim],
-            inverse_pivot: vec![0.0; dim],
-            swapped: vec![false; dim],
-            x: vec![0.0; dim],
-            start: {
-                let mut start = vec![0.0; dim];
-                starting_vector(&mut start);
-                start
-            },
-            cluster: Vec::with_capacity(dim),
-            previous: None,
+            u0: lanes(),
+            u1: lanes(),
+            u2: lanes(),
+            inverse_pivot: lanes(),
+            mult: lanes(),
+            swapped: vec![[false; LANES]; dim],
+            x: lanes(),
+            start,
+            tasks: Vec::with_capacity(dim),
+            cluster_first: Vec::with_capacity(dim),
+            cursor: Vec::with_capacity(dim),
+            cluster_end: Vec::with_capacity(dim),
             norm: 0.0,
-            converged: false,
         }
     }
 
@@ -350,31 +361,163 @@ impl InverseIteration {
                 d[i].abs() + left + right
             })
             .fold(0.0, f64::max);
-        self.cluster.clear();
-        self.previous = None;
+        self.tasks.clear();
+        self.cluster_first.clear();
+        self.cursor.clear();
+        self.cluster_end.clear();
     }
 
-    /// The unit eigenvector of the level `level` of the current block (whose first row is
-    /// `start`) into column `column` of `vectors`, zero outside the block; false if the growth
-    /// test did not pass often enough.
-    fn vector(
-        &mut self,
-        level: f64,
-        column: usize,
-        start: usize,
-        vectors: MatMut<'_, f64>,
-    ) -> bool {
-        let s = self.d.len();
-        let mut vectors = vectors;
-        if s == 1 {
-            self.x[0] = 1.0;
-        } else {
-            self.iterate(level, start, vectors.rb());
+    /// Adds the next level of the block (ascending) whose vector goes to column `column`. As in
+    /// `dstein`, close levels get shifts at least 10ε‖T‖ apart so that each factorisation
+    /// differs, and a level within [`CLUSTER_TOL`]‖T‖ of the previous one joins its cluster.
+    fn add_level(&mut self, level: f64, column: usize) {
+        let mut shift = level;
+        let mut cluster = 0;
+        if let Some(previous) = self.tasks.last() {
+            let separation = 10.0 * f64::EPSILON * level.abs().max(self.norm);
+            shift = shift.max(previous.shift + separation);
+            cluster = previous.cluster;
+            if shift - previous.shift > CLUSTER_TOL * self.norm {
+                cluster += 1;
+            }
         }
-        let x = &self.x[..s];
-        let norm = x.iter().map(|v| v * v).sum::<f64>().sqrt();
-        let (biggest, _) = largest(x);
-        let scale = if x[biggest] < 0.0 {
+        if cluster == self.cursor.len() {
+            self.cluster_first.push(self.tasks.len());
+            self.cursor.push(self.tasks.len());
+            self.cluster_end.push(self.tasks.len());
+        }
+        self.cluster_end[cluster] += 1;
+        self.tasks.push(Task {
+            column,
+            shift,
+            cluster,
+        });
+    }
+
+    /// The unit eigenvectors of every added level into their columns of `vectors` (the block's
+    /// rows starting at `start`, zero elsewhere); false if some vector did not pass the growth
+    /// test often enough within [`MAX_ITERATIONS`].
+    fn run(&mut self, start: usize, mut vectors: MatMut<'_, f64>) -> bool {
+        let s = self.d.len();
+        if s == 1 {
+            for task in &self.tasks {
+                let mut col = vectors.rb_mut().col_mut(task.column);
+                col.fill(0.0);
+                col[start] = 1.0;
+            }
+            return true;
+        }
+        let mut ok = true;
+        let mut first_open = 0;
+        loop {
+            // One round: the next task of each of the first LANES clusters with tasks left. A
+            // task's cluster predecessors all ran in earlier rounds.
+            while first_open < self.cursor.len()
+                && self.cursor[first_open] == self.cluster_end[first_open]
+            {
+                first_open += 1;
+            }
+            let mut round = [usize::MAX; LANES];
+            let mut used = 0;
+            for c in first_open..self.cursor.len() {
+                if used == LANES {
+                    break;
+                }
+                if self.cursor[c] < self.cluster_end[c] {
+                    round[used] = self.cursor[c];
+                    self.cursor[c] += 1;
+                    used += 1;
+                }
+            }
+            if used == 0 {
+                return ok;
+            }
+            ok &= self.round(&round[..used], start, vectors.rb_mut());
+        }
+    }
+
+    /// Inverse iteration for the tasks `round` (at most [`LANES`], from different clusters),
+    /// side by side; spare lanes repeat the last shift and are ignored.
+    fn round(&mut self, round: &[usize], start: usize, mut vectors: MatMut<'_, f64>) -> bool {
+        let s = self.d.len();
+        let shifts: [f64; LANES] =
+            std::array::from_fn(|l| self.tasks[round[l.min(round.len() - 1)]].shift);
+        self.factor(shifts);
+        for (row, &v) in self.x[..s].iter_mut().zip(&self.start) {
+            *row = [v; LANES];
+        }
+        let growth = (0.1 / s as f64).sqrt();
+        let mut passed = [0; LANES];
+        let mut done = [false; LANES];
+        for _ in 0..MAX_ITERATIONS {
+            let mut sums = [0.0; LANES];
+            for row in &self.x[..s] {
+                for l in 0..LANES {
+                    sums[l] += row[l].abs();
+                }
+            }
+            let last = self.u0[s - 1];
+            let scales: [f64; LANES] = std::array::from_fn(|l| {
+                s as f64 * self.norm * f64::EPSILON.max(last[l].abs()) / sums[l]
+            });
+            for row in &mut self.x[..s] {
+                for l in 0..LANES {
+                    row[l] *= scales[l];
+                }
+            }
+            self.solve();
+            for (l, &t) in round.iter().enumerate() {
+                if done[l] {
+                    continue;
+                }
+                self.orthogonalise(l, t, start, vectors.rb());
+                if largest_in_lane(&self.x[..s], l).1 < growth {
+                    continue;
+                }
+                passed[l] += 1;
+                if passed[l] > EXTRA_ITERATIONS {
+                    done[l] = true;
+                    self.store(l, self.tasks[t].column, start, vectors.rb_mut());
+                }
+            }
+            if done[..round.len()].iter().all(|&d| d) {
+                return true;
+            }
+        }
+        for (l, &t) in round.iter().enumerate() {
+            if !done[l] {
+                self.store(l, self.tasks[t].column, start, vectors.rb_mut());
+            }
+        }
+        false
+    }
+
+    /// Modified Gram-Schmidt of lane `lane` against the vectors of the earlier tasks of task
+    /// `task`'s cluster.
+    fn orthogonalise(&mut self, lane: usize, task: usize, start: usize, vectors: MatRef<'_, f64>) {
+        let s = self.d.len();
+        let first = self.cluster_first[self.tasks[task].cluster];
+        for other in &self.tasks[first..task] {
+            let z = vectors
+                .col(other.column)
+                .subrows(start, s)
+                .try_as_col_major()
+                .expect("a column of a column-major matrix is contiguous")
+                .as_slice();
+            let x = &mut self.x[..s];
+            let overlap: f64 = x.iter().zip(z).map(|(a, b)| a[lane] * b).sum();
+            x.iter_mut()
+                .zip(z)
+                .for_each(|(a, b)| a[lane] -= overlap * b);
+        }
+    }
+
+    /// Lane `lane` normalised, its largest entry positive, into column `column` of `vectors`.
+    fn store(&self, lane: usize, column: usize, start: usize, mut vectors: MatMut<'_, f64>) {
+        let x = &self.x[..self.d.len()];
+        let norm = x.iter().map(|v| v[lane] * v[lane]).sum::<f64>().sqrt();
+        let (biggest, _) = largest_in_lane(x, lane);
+        let scale = if x[biggest][lane] < 0.0 {
             -1.0 / norm
         } else {
             1.0 / norm
@@ -382,149 +525,111 @@ impl InverseIteration {
         let mut col = vectors.rb_mut().col_mut(column);
         col.fill(0.0);
         for (k, v) in x.iter().enumerate() {
-            col[start + k] = v * scale;
-        }
-        self.cluster.push(column);
-        self.converged && norm.is_finite()
-    }
-
-    /// Inverse iteration into `x` (not normalised); sets `converged`.
-    fn iterate(&mut self, level: f64, start: usize, vectors: MatRef<'_, f64>) {
-        let s = self.d.len();
-        // Close levels get shifts at least 10ε‖T‖ apart, so that each factorisation differs.
-        let mut shift = level;
-        if let Some(previous) = self.previous {
-            let separation = 10.0 * f64::EPSILON * level.abs().max(self.norm);
-            if shift - previous < separation {
-                shift = previous + separation;
-            }
-            if (shift - previous).abs() > CLUSTER_TOL * self.norm {
-                self.cluster.clear();
-            }
-        }
-        self.previous = Some(shift);
-        self.factor(shift);
-        self.x[..s].copy_from_slice(&self.start[..s]);
-        let growth = (0.1 / s as f64).sqrt();
-        let mut passed = 0;
-        self.converged = false;
-        for _ in 0..MAX_ITERATIONS {
-            let sum = abs_sum(&self.x[..s]);
-            let scale = s as f64 * self.norm * f64::EPSILON.max(self.u0[s - 1].abs()) / sum;
-            self.x[..s].iter_mut().for_each(|v| *v *= scale);
-            self.solve();
-            for &other in &self.cluster {
-                let z = vectors
-                    .col(other)
-                    .subrows(start, s)
-                    .try_as_col_major()
-                    .expect("a column of a column-major matrix is contiguous")
-                    .as_slice();
-                let x = &mut self.x[..s];
-                let overlap: f64 = x.iter().zip(z).map(|(a, b)| a * b).sum();
-                x.iter_mut().zip(z).for_each(|(a, b)| *a -= overlap * b);
-            }
-            if largest(&self.x[..s]).1 < growth {
-                continue;
-            }
-            passed += 1;
-            if passed > EXTRA_ITERATIONS {
-                self.converged = true;
-                return;
-            }
+            col[start + k] = v[lane] * scale;
         }
     }
 
-    /// P L U = T − λI with partial pivoting (U upper triangular with two superdiagonals; the
-    /// row choice of LAPACK's `dlagtf`, compared by cross-multiplication). A pivot smaller than
-    /// ε max|U| is replaced by ±ε max|U| (a perturbation of T − λI within its rounding), so the
-    /// solves can multiply by precomputed reciprocals.
-    fn factor(&mut self, shift: f64) {
+    /// P L U = T − σI with partial pivoting for the shift σ of each lane (U upper triangular
+    /// with two superdiagonals; the row choice of LAPACK's `dlagtf`, compared by
+    /// cross-multiplication and made with selects rather than branches). A pivot smaller than
+    /// ε max|U| is replaced by ±ε max|U| (a perturbation of T − σI within its rounding), so the
+    /// solves can multiply by reciprocals. (max|U| is taken as the largest row sum of |U|, within a
+    /// factor 3 of the largest entry.)
+    fn factor(&mut self, shifts: [f64; LANES]) {
         let s = self.d.len();
-        for k in 0..s {
-            self.u0[k] = self.d[k] - shift;
-        }
-        self.u1[..s - 1].copy_from_slice(&self.e[..s - 1]);
-        self.u1[s - 1] = 0.0;
-        self.u2[s - 1] = 0.0;
-        self.mult[..s - 1].copy_from_slice(&self.e[..s - 1]);
-        let mut scale1 = self.u0[0].abs() + self.u1[0].abs();
+        let (d, e) = (&self.d, &self.e);
+        let mut a: [f64; LANES] = shifts.map(|shift| d[0] - shift);
+        let mut b = [e[0]; LANES];
+        let mut scale1: [f64; LANES] = std::array::from_fn(|l| a[l].abs() + b[l].abs());
         for k in 0..s - 1 {
-            let mut scale2 = self.mult[k].abs() + self.u0[k + 1].abs();
-            if k + 2 < s {
-                scale2 += self.u1[k + 1].abs();
-            }
-            self.u2[k] = 0.0;
-            self.swapped[k] = false;
-            if self.mult[k] == 0.0 {
-                scale1 = scale2;
-                continue;
-            }
-            if self.mult[k].abs() * scale1 <= self.u0[k].abs() * scale2 {
-                scale1 = scale2;
-                self.mult[k] /= self.u0[k];
-                self.u0[k + 1] -= self.mult[k] * self.u1[k];
-            } else {
-                self.swapped[k] = true;
-                let m = self.u0[k] / self.mult[k];
-                self.u0[k] = self.mult[k];
-                let below = self.u0[k + 1];
-                self.u0[k + 1] = self.u1[k] - m * below;
-                if k + 2 < s {
-                    self.u2[k] = self.u1[k + 1];
-                    self.u1[k + 1] = -m * self.u2[k];
+            let c = e[k];
+            let below: [f64; LANES] = shifts.map(|shift| d[k + 1] - shift);
+            let right = if k + 2 < s { e[k + 1] } else { 0.0 };
+            for l in 0..LANES {
+                let scale2 = c.abs() + below[l].abs() + right.abs();
+                let swap = c != 0.0 && (a[l] == 0.0 || c.abs() * scale1[l] > a[l].abs() * scale2);
+                let (numerator, denominator) = if swap { (a[l], c) } else { (c, a[l]) };
+                let m = if c == 0.0 {
+                    0.0
+                } else {
+                    numerator / denominator
+                };
+                self.u0[k][l] = if swap { c } else { a[l] };
+                self.u1[k][l] = if swap { below[l] } else { b[l] };
+                self.u2[k][l] = if swap { right } else { 0.0 };
+                self.mult[k][l] = m;
+                self.swapped[k][l] = swap;
+                let next_a = if swap {
+                    b[l] - m * below[l]
+                } else {
+                    below[l] - m * b[l]
+                };
+                b[l] = if swap { -m * right } else { right };
+                a[l] = next_a;
+                if !swap {
+                    scale1[l] = scale2;
                 }
-                self.u1[k] = below;
-                self.mult[k] = m;
             }
         }
-        let size = [&self.u0[..s], &self.u1[..s - 1], &self.u2[..s - 1]]
-            .iter()
-            .map(|part| largest(part).1)
-            .fold(0.0, f64::max);
-        let tol = (f64::EPSILON * size).max(f64::MIN_POSITIVE);
-        // The solve needs x_k = (y_k − U_k,k+1 x_k+1 − U_k,k+2 x_k+2) / U_kk: keep 1/U_kk and the
-        // superdiagonals divided by U_kk, so that each step is two fused multiply-adds.
+        self.u0[s - 1] = a;
+        self.u1[s - 1] = [0.0; LANES];
+        self.u2[s - 1] = [0.0; LANES];
+        let mut size = [0.0f64; LANES];
         for k in 0..s {
-            let pivot = self.u0[k];
-            let pivot = if pivot.abs() >= tol {
-                pivot
-            } else if pivot < 0.0 {
-                -tol
-            } else {
-                tol
-            };
-            self.u0[k] = pivot;
-            self.inverse_pivot[k] = 1.0 / pivot;
-            if k + 1 < s {
-                self.u1[k] /= pivot;
-                self.u2[k] /= pivot;
+            for (l, largest) in size.iter_mut().enumerate() {
+                let entry = self.u0[k][l].abs() + self.u1[k][l].abs() + self.u2[k][l].abs();
+                if entry > *largest {
+                    *largest = entry;
+                }
+            }
+        }
+        for (l, &size) in size.iter().enumerate() {
+            let tol = (f64::EPSILON * size).max(f64::MIN_POSITIVE);
+            // The solve needs x_k = (y_k − U_k,k+1 x_k+1 − U_k,k+2 x_k+2) / U_kk: keep 1/U_kk and
+            // the superdiagonals divided by U_kk.
+            for k in 0..s {
+                let pivot = self.u0[k][l];
+                let pivot = if pivot.abs() >= tol {
+                    pivot
+                } else if pivot < 0.0 {
+                    -tol
+                } else {
+                    tol
+                };
+                self.u0[k][l] = pivot;
+                self.inverse_pivot[k][l] = 1.0 / pivot;
+                self.u1[k][l] /= pivot;
+                self.u2[k][l] /= pivot;
             }
         }
     }
 
-    /// Solves (T − λI) y = x in place in `x` with the factors of [`Self::factor`].
+    /// Solves (T − σI) y = x in place in `x`, every lane with its own factors.
     fn solve(&mut self) {
         let s = self.d.len();
         let x = &mut self.x[..s];
-        // L: row swaps and eliminations, the newest row carried in a register.
+        // L: row swaps and eliminations, the newest row carried in registers.
         let mut last = x[0];
         for k in 1..s {
             let here = x[k];
-            let m = self.mult[k - 1];
-            if self.swapped[k - 1] {
-                x[k - 1] = here;
-                last -= m * here;
-            } else {
-                x[k - 1] = last;
-                last = here - m * last;
+            for l in 0..LANES {
+                let swap = self.swapped[k - 1][l];
+                let keep = if swap { here[l] } else { last[l] };
+                let other = if swap { last[l] } else { here[l] };
+                x[k - 1][l] = keep;
+                last[l] = other - self.mult[k - 1][l] * keep;
             }
         }
         x[s - 1] = last;
         // U, bottom up.
-        let (mut next, mut after) = (0.0, 0.0);
+        let (mut next, mut after) = ([0.0; LANES], [0.0; LANES]);
         for k in (0..s).rev() {
-            let value = x[k] * self.inverse_pivot[k] - self.u2[k] * after - self.u1[k] * next;
+            let mut value = [0.0; LANES];
+            for l in 0..LANES {
+                value[l] = x[k][l] * self.inverse_pivot[k][l]
+                    - self.u2[k][l] * after[l]
+                    - self.u1[k][l] * next[l];
+            }
             x[k] = value;
             after = next;
             next = value;
@@ -532,28 +637,15 @@ impl InverseIteration {
     }
 }
 
-/// Index and magnitude of the entry of `x` largest in magnitude (the first of equals).
-fn largest(x: &[f64]) -> (usize, f64) {
+/// Index and magnitude of the entry of lane `lane` largest in magnitude (the first of equals).
+fn largest_in_lane(x: &[[f64; LANES]], lane: usize) -> (usize, f64) {
     let mut best = (0, 0.0);
     for (k, v) in x.iter().enumerate() {
-        if v.abs() > best.1 {
-            best = (k, v.abs());
+        if v[lane].abs() > best.1 {
+            best = (k, v[lane].abs());
         }
     }
     best
-}
-
-/// Σ|x_k| in four interleaved partial sums (a fixed order, so the result is reproducible).
-fn abs_sum(x: &[f64]) -> f64 {
-    let mut partial = [0.0; 4];
-    let chunks = x.chunks_exact(4);
-    let tail: f64 = chunks.remainder().iter().map(|v| v.abs()).sum();
-    for chunk in chunks {
-        for (p, v) in partial.iter_mut().zip(chunk) {
-            *p += v.abs();
-        }
-    }
-    (partial[0] + partial[1]) + (partial[2] + partial[3]) + tail
 }
 
 /// Fixed pseudo-random numbers in (−1, 1), the start of every inverse iteration: SplitMix64
