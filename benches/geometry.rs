@@ -21,7 +21,7 @@ fn bench(c: &mut Criterion) {
         .to_cage();
     let c100 = first_isomer(100, true).to_cage();
     // Not IPR C500:1 from the enumerator: finding it takes minutes. The two C500s of
-    // tests/geometry.rs instead: a (5,5) tube capped by C60 halves (D5d) and the Ih Goldberg
+    // tests/suite/geometry.rs instead: a (5,5) tube capped by C60 halves (D5d) and the Ih Goldberg
     // cage (5,0).
     let tube =
         Spiral::from_pentagon_indices(500, &[1, 7, 9, 11, 13, 15, 238, 240, 242, 244, 246, 252])

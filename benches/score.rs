@@ -104,7 +104,7 @@ fn bench_peer_set(c: &mut Criterion) {
 }
 
 /// The exact Kekulé count on a large cage: C540 = leapfrog of leapfrog of C60-Ih (the cage of
-/// the large-count test in tests/huckel_kekule.rs), whose count has 124 bits.
+/// the large-count test in tests/suite/huckel_kekule.rs), whose count has 124 bits.
 fn bench_large(c: &mut Criterion) {
     let (_, c60) = cages().swap_remove(0);
     let c540 = c60.leapfrog().leapfrog();

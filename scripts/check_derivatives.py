@@ -8,7 +8,7 @@
 2. Hückel levels with heteroatoms: HOMO and LUMO of every C58N2 and C58B2 pattern recomputed
    with numpy.linalg.eigvalsh from the Van-Catledge parameters (J. Org. Chem. 45 (1980) 4801).
 3. SDF: every record of tests/data/derivatives.sdf (written by the ignored test
-   `write_reference_sdf` in tests/derivative.rs) is read and sanitised by RDKit; the script
+   `write_reference_sdf` in tests/suite/derivative.rs) is read and sanitised by RDKit; the script
    reports formula, formal charge, radical electrons and the range of bond lengths per element
    pair.
 

@@ -3,7 +3,8 @@
 # into a catalogue, list the best-ranked C84 candidates, and export them for quantum chemistry.
 set -euo pipefail
 cd "$(dirname "$0")/.."
-cargo build --release --quiet
+echo "building cagerank (release; a few minutes the first time)" >&2
+cargo build --release
 bin=target/release/cagerank
 out=${1:-demo-output}
 mkdir -p "$out"

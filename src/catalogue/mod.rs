@@ -39,11 +39,32 @@ pub const CATALOGUE_ENV: &str = "CAGERANK_CATALOGUE";
 /// Default catalogue directory when the variable is unset (relative to the working directory;
 /// the repository ships its catalogue there).
 pub const DEFAULT_DIR: &str = "catalogues";
+/// The catalogue shipped in the source tree this binary was built from, so that an installed
+/// binary (`cargo install --path .`) finds it from any working directory.
+const SHIPPED_DIR: &str = concat!(env!("CARGO_MANIFEST_DIR"), "/catalogues");
 /// File extension of catalogue data files.
 pub const DATA_EXT: &str = "cgr";
 
-/// The catalogue directory to use: `$CAGERANK_CATALOGUE` if set and non-empty, else `./catalogues`.
+/// The catalogue to read: `$CAGERANK_CATALOGUE` if set and non-empty, else `./catalogues` if it
+/// exists, else the catalogue shipped with the source tree of this build if that still exists,
+/// else `./catalogues` (whose absence the caller reports).
 pub fn default_dir() -> PathBuf {
+    if let Some(dir) = std::env::var_os(CATALOGUE_ENV).filter(|v| !v.is_empty()) {
+        return PathBuf::from(dir);
+    }
+    let local = PathBuf::from(DEFAULT_DIR);
+    let shipped = PathBuf::from(SHIPPED_DIR);
+    if !local.is_dir() && shipped.is_dir() {
+        shipped
+    } else {
+        local
+    }
+}
+
+/// The catalogue to write when none is named: `$CAGERANK_CATALOGUE` if set and non-empty, else
+/// `./catalogues`. Never the shipped catalogue of the source tree, which a run elsewhere must not
+/// change behind the user's back.
+pub fn default_write_dir() -> PathBuf {
     match std::env::var_os(CATALOGUE_ENV) {
         Some(v) if !v.is_empty() => PathBuf::from(v),
         _ => PathBuf::from(DEFAULT_DIR),

@@ -44,8 +44,8 @@ pub struct Args {
     /// size). For PDF write .svg and convert it with any SVG tool.
     #[arg(short = 'o', long = "output", value_name = "FILE")]
     pub output: PathBuf,
-    /// Catalogue directory to find the isomer in (default: $CAGERANK_CATALOGUE or ./catalogues
-    /// when present; otherwise the list is searched up to the number).
+    /// Catalogue directory to find the isomer in (default: $CAGERANK_CATALOGUE, else ./catalogues, else the
+    /// catalogue shipped with this build, when present; otherwise the list is searched up to the number).
     #[arg(long, value_name = "DIR")]
     pub catalogue: Option<PathBuf>,
     /// What the colours show.

@@ -179,7 +179,7 @@ fn run_size(out: &mut Out, args: &Args, atoms: u64) -> Result<(), CliError> {
 /// about [`COMMIT_EVERY`]; a killed run resumes from the last committed batch.
 fn write_catalogue(out: &mut Out, args: &Args, spec: &Spec, dir: &Path) -> Result<(), CliError> {
     let dir = if dir.as_os_str().is_empty() {
-        catalogue::default_dir()
+        catalogue::default_write_dir()
     } else {
         dir.to_path_buf()
     };

@@ -41,8 +41,8 @@ pub struct Args {
     /// Elements to drop before bond perception, comma-separated (e.g. Sc,N for Sc3N@C80).
     #[arg(long, value_name = "ELEMENTS")]
     pub ignore_elements: Option<String>,
-    /// Catalogue directory to read isomer numbers from (default: $CAGERANK_CATALOGUE or
-    /// ./catalogues when present; needed for the complete list beyond C84).
+    /// Catalogue directory to read isomer numbers from (default: $CAGERANK_CATALOGUE, else
+    /// ./catalogues, else the catalogue shipped with this build, when present; needed for the complete list beyond C84).
     #[arg(long, value_name = "DIR")]
     pub catalogue: Option<PathBuf>,
     #[command(flatten)]

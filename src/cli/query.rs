@@ -29,7 +29,7 @@ pub enum Format {
 /// Rankings are screening heuristics, not predictions of safety or real-world stability.
 #[derive(clap::Args, Debug)]
 pub struct Args {
-    /// Catalogue directory [default: $CAGERANK_CATALOGUE, else ./catalogues].
+    /// Catalogue directory [default: $CAGERANK_CATALOGUE, else ./catalogues, else the catalogue shipped with this build].
     #[arg(long, value_name = "DIR")]
     pub catalogue: Option<PathBuf>,
     /// Number of atoms (cage size), e.g. 84.

@@ -45,7 +45,7 @@ pub struct Args {
     pub ipr: bool,
     #[command(flatten)]
     pub charge: super::ChargeArg,
-    /// Catalogue directory [default: $CAGERANK_CATALOGUE, else ./catalogues].
+    /// Catalogue directory [default: $CAGERANK_CATALOGUE, else ./catalogues, else the catalogue shipped with this build].
     #[arg(long, value_name = "DIR")]
     pub catalogue: Option<PathBuf>,
     /// Relax at most K candidates from stage 1 [default: 100].

@@ -40,7 +40,7 @@ pub struct Args {
     #[command(flatten)]
     pub charge: super::ChargeArg,
     /// Catalogue to look numbers and stored energies up in [default: $CAGERANK_CATALOGUE, else
-    /// ./catalogues].
+    /// ./catalogues, else the catalogue shipped with this build].
     #[arg(long, value_name = "DIR")]
     pub catalogue: Option<PathBuf>,
     /// One JSON object with every descriptor and the per-bond and per-ring arrays.

@@ -26,8 +26,8 @@ pub struct Args {
     /// One JSON object instead of text.
     #[arg(long)]
     pub json: bool,
-    /// Catalogue directory to read isomer numbers from (default: $CAGERANK_CATALOGUE or
-    /// ./catalogues when present).
+    /// Catalogue directory to read isomer numbers from (default: $CAGERANK_CATALOGUE, else
+    /// ./catalogues, else the catalogue shipped with this build, when present).
     #[arg(long, value_name = "DIR")]
     pub catalogue: Option<PathBuf>,
     /// Skip looking up isomer numbers (which may search the list).

@@ -16,7 +16,7 @@ const BAR: usize = 40;
 /// Summarise a catalogue: sizes held, counts and descriptor distributions.
 #[derive(clap::Args, Debug)]
 pub struct Args {
-    /// Catalogue directory [default: $CAGERANK_CATALOGUE, else ./catalogues].
+    /// Catalogue directory [default: $CAGERANK_CATALOGUE, else ./catalogues, else the catalogue shipped with this build].
     #[arg(long, value_name = "DIR")]
     pub catalogue: Option<PathBuf>,
     /// Also draw the histograms into this SVG file.

@@ -10,7 +10,7 @@ use std::path::PathBuf;
 /// Check a catalogue completely and report damaged files.
 #[derive(clap::Args, Debug)]
 pub struct Args {
-    /// Catalogue directory [default: $CAGERANK_CATALOGUE, else ./catalogues].
+    /// Catalogue directory [default: $CAGERANK_CATALOGUE, else ./catalogues, else the catalogue shipped with this build].
     #[arg(value_name = "CATALOGUE")]
     pub catalogue: Option<PathBuf>,
 }

@@ -248,7 +248,7 @@ mod tests {
 
     #[test]
     fn a_long_tube_gets_separated_atoms() {
-        // A (5,5) tube C500 capped by C60 halves (as in tests/geometry.rs): its first five
+        // A (5,5) tube C500 capped by C60 halves (as in tests/suite/geometry.rs): its first five
         // levels below the top are waves along the axis, which put whole rings on one point.
         let cage = Spiral::from_pentagon_indices(
             500,

@@ -1,14 +1,12 @@
 //! Point groups, NMR patterns and descriptor records checked against published isomer data,
 //! over whole enumerations where that is cheap.
 
-mod common;
-
+use crate::common::random_perm;
 use cagerank::automorphism;
 use cagerank::enumerate::{self, Options, Spec};
 use cagerank::score::symmetry::{symmetry, PointGroup, Symmetry};
 use cagerank::score::{describe, Descriptors};
 use cagerank::spiral::{canonical_spiral, Spiral};
-use common::random_perm;
 use proptest::prelude::*;
 
 fn symmetry_of(spiral: &Spiral) -> Symmetry {

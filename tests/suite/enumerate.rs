@@ -1,11 +1,9 @@
 //! The enumerator checked against published counts and independent oracles.
 
-mod common;
-
+use crate::common::random_perm;
 use cagerank::cage::{Cage, VertexId};
 use cagerank::enumerate::{self, Isomer, Options, Shard, Spec};
 use cagerank::spiral::canonical_spiral;
-use common::random_perm;
 use petgraph::algo::{connected_components, is_isomorphic};
 use petgraph::graph::UnGraph;
 use proptest::prelude::*;
@@ -90,7 +88,7 @@ fn c100_pentagon_starts_miss_exactly_one_cage() {
 fn c100_default_search_finds_all_285914() {
     // OEIS A007894: 285914 fullerenes with 100 atoms. The default C100 search also tries hexagon
     // starts, and the one cage pentagon starts miss comes last: the Td cage whose spirals all
-    // start on hexagons (see tests/identify.rs and scripts/spiralless_cage.py --pentagon-starts).
+    // start on hexagons (see tests/suite/identify.rs and scripts/spiralless_cage.py --pentagon-starts).
     let spec = Spec::fullerene(100, false).unwrap();
     assert!(spec.all_starts);
     let mut last = None;

@@ -3,8 +3,6 @@
 //! an independent numpy implementation at fixed geometries, invariances, charges and the bond
 //! graph check. Each check names its source.
 
-mod common;
-
 use cagerank::cage::Cage;
 use cagerank::energy::params::{
     embedding, hopping_scale, pair_term, CUTOFF, E_P, E_S, PHI_TAIL, S_TAIL, V_PP_PI, V_PP_SIGMA,
@@ -404,7 +402,7 @@ proptest! {
         let reference = evaluator.energy(&x);
         let r = rotation(angles.0, angles.1, angles.2);
         let t = [shift.0, shift.1, shift.2];
-        let perm = common::random_perm(60, seed);
+        let perm = crate::common::random_perm(60, seed);
         let mut y = vec![0.0; x.len()];
         for a in 0..60 {
             let p = perm[a] as usize;
@@ -499,7 +497,7 @@ fn c60_anion_is_partly_filled_at_ih_and_relaxes_again_from_a_perturbation() {
 #[test]
 fn c60_anion_energy_does_not_depend_on_atom_order() {
     let relaxed = c60_anion();
-    let perm = common::random_perm(60, 2024);
+    let perm = crate::common::random_perm(60, 2024);
     let cage = c60().relabelled(&perm);
     let mut start = vec![[0.0; 3]; 60];
     for (a, &p) in perm.iter().enumerate() {
@@ -598,7 +596,7 @@ fn reference_cages() -> Vec<(&'static str, Cage, PointGroup)> {
 }
 
 /// Regenerates the committed geometries (force-field starts, and the distorted C60 of the force
-/// check). Run once by hand: `cargo test --release --test energy -- --ignored write_reference`.
+/// check). Run once by hand: `cargo test --release --test suite -- --ignored energy::write_reference`.
 #[test]
 #[ignore]
 fn write_reference_geometries() {
@@ -785,7 +783,7 @@ fn eigensolver_agrees_with_nalgebra_on_degenerate_and_split_matrices() {
     doubled.view_mut((30, 30), (30, 30)).copy_from(&block);
     let count = 2 * count_at_a_gap(&block);
     check_eigensolver(&doubled, count, "A+A");
-    let perm = common::random_perm(60, 7);
+    let perm = crate::common::random_perm(60, 7);
     let shuffled =
         DMatrix::<f64>::from_fn(60, 60, |i, j| doubled[(perm[i] as usize, perm[j] as usize)]);
     check_eigensolver(&shuffled, count, "A+A shuffled");
@@ -836,7 +834,7 @@ fn eigensolver_agrees_with_nalgebra_on_the_c60_hamiltonian() {
 /// keeps the point group: Fowler & Steer 1987, from memory), the Goldberg cage (3,3).
 /// Ignored: about 1 min on one core (about 17 evaluations of a 2160-orbital Hamiltonian, 2-4 s
 /// each). Run with
-/// `cargo test --release --test energy -- --ignored c540 --nocapture`.
+/// `cargo test --release --test suite -- --ignored energy::c540 --nocapture`.
 #[test]
 #[ignore]
 fn c540_relaxes_keeping_its_bonds_between_c60_and_graphene() {

@@ -624,7 +624,7 @@ fn queries_equal_brute_force_filter_and_sort() {
 }
 
 /// Figures for docs/performance.md (not a pass/fail check): run with
-/// `cargo test --test catalogue measure -- --ignored --nocapture`.
+/// `cargo test --release --test suite -- --ignored catalogue::measure --nocapture`.
 #[test]
 #[ignore]
 fn measure_storage_and_scan_speed() {
