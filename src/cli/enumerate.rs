@@ -57,8 +57,8 @@ pub struct Args {
     /// Write scored isomers into this catalogue directory (resumable: run the same command again
     /// after an interruption). Default directory: $CAGERANK_CATALOGUE or ./catalogues. Runs of
     /// different --charge values are kept side by side (fullerene-c80-ipr-q-6.cgr).
-    #[arg(long, value_name = "DIR", num_args = 0..=1, default_missing_value = "")]
-    pub catalogue: Option<PathBuf>,
+    #[arg(long, value_name = "DIR", num_args = 0..=1)]
+    pub catalogue: Option<Option<PathBuf>>,
 }
 
 pub fn run(args: Args) -> Result<(), CliError> {
@@ -125,7 +125,7 @@ fn run_size(out: &mut Out, args: &Args, atoms: u64) -> Result<(), CliError> {
             .map_err(|e| CliError::usage(e.to_string()))?;
     }
     if let Some(dir) = &args.catalogue {
-        return write_catalogue(out, args, &spec, dir);
+        return write_catalogue(out, args, &spec, dir.as_deref());
     }
     let opts = Options {
         threads: args.threads,
@@ -177,12 +177,13 @@ fn run_size(out: &mut Out, args: &Args, atoms: u64) -> Result<(), CliError> {
 
 /// Enumerates the units the catalogue still lacks, scores them and commits them in batches of
 /// about [`COMMIT_EVERY`]; a killed run resumes from the last committed batch.
-fn write_catalogue(out: &mut Out, args: &Args, spec: &Spec, dir: &Path) -> Result<(), CliError> {
-    let dir = if dir.as_os_str().is_empty() {
-        catalogue::default_write_dir()
-    } else {
-        dir.to_path_buf()
-    };
+fn write_catalogue(
+    out: &mut Out,
+    args: &Args,
+    spec: &Spec,
+    dir: Option<&Path>,
+) -> Result<(), CliError> {
+    let dir = dir.map_or_else(catalogue::default_write_dir, Path::to_path_buf);
     let all_units = enumerate::units(spec);
     let info = RunInfo {
         face_set: spec.face_set,

@@ -16,5 +16,6 @@ mod geometry;
 mod huckel_kekule;
 mod identify;
 mod identify_catalogue;
+mod install;
 mod screen;
 mod symmetry;
