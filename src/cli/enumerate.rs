@@ -25,9 +25,26 @@ use std::time::{Duration, Instant};
 /// One commit is one small file and an fsync, so a few seconds keep its cost invisible.
 const COMMIT_EVERY: Duration = Duration::from_secs(3);
 
+/// What `enumerate --help` says about size, time, memory and threads.
+const LIMITS_HELP: &str = "\
+Sizes and cost:
+  Any even atom count from 20 (no fullerene has 22) up to 100000 is accepted. Finding one isomer
+  near the start of a list takes seconds even at C1000 (`show C1000:1`), but a whole list grows
+  as about n^9 (Thurston 1998):
+  all C100 takes about 4 minutes on 2 threads, all C150 about half a day, IPR C200 about a week,
+  C1000 about a million years. Before a run expected to take over a minute or 4 GB of memory, a
+  note on stderr gives the isomer count, time and peak memory from a model fitted to measured
+  runs (good to a factor of about two; --quiet hides it); the run then starts without asking.
+  Memory stays bounded at any size: the completion store's cap (about 1 GB, 2 GB with hexagon
+  starts), a window of units whose isomers are held at once, and each thread's scratch.
+  --count-only keeps no isomer. --threads above the cores this process may use is capped to
+  them, with a note.";
+
 #[derive(clap::Args, Debug)]
+#[command(after_long_help = LIMITS_HELP)]
 pub struct Args {
-    /// Atom counts: even numbers or inclusive ranges such as 60..100.
+    /// Atom counts: even numbers or inclusive ranges such as 60..100 (up to 100000; see the
+    /// cost notes below).
     #[arg(required = true, value_name = "SIZES")]
     pub sizes: Vec<String>,
     /// Only isomers obeying the isolated-pentagon rule (no two pentagons share an edge).
@@ -480,7 +497,10 @@ impl Table {
         } else {
             format!("C{atoms} (unit 0000)").len()
         };
-        let ipr_id = if numbered && !spec.ipr {
+        // No IPR fullerene has fewer than 60 atoms or 62-68 (OEIS A046880), so those lists
+        // get no IPR-ID column.
+        let has_ipr = atoms == 60 || atoms >= 70;
+        let ipr_id = if numbered && !spec.ipr && has_ipr {
             prefix + digits
         } else {
             0

@@ -515,7 +515,7 @@ impl<'a> Search<'a> {
                 self.solve(used, out, memo);
                 memo.stack.truncate(mark);
             }
-            if enter_store || next == sizes.len() || self.full(out) {
+            if enter_store || next == sizes.len() || self.full() {
                 levels.pop();
                 if !levels.is_empty() {
                     self.winder.pop();
@@ -533,7 +533,7 @@ impl<'a> Search<'a> {
     }
 
     /// True once the search has found as many isomers as it was asked for.
-    fn full(&self, _out: &[Found]) -> bool {
+    fn full(&self) -> bool {
         self.found >= self.limit
     }
 
@@ -581,7 +581,7 @@ impl<'a> Search<'a> {
         let mark = memo.stack.len();
         let bits = code_bits(self.spec.face_set);
         for (i, &s) in self.spec.face_set.sizes().iter().enumerate() {
-            if self.full(out) {
+            if self.full() {
                 // Stopped early: the codes below `mark` are not every completion, so they are
                 // not stored.
                 return;
@@ -596,7 +596,7 @@ impl<'a> Search<'a> {
             }
         }
         if let Some(k) = key {
-            if !self.full(out) {
+            if !self.full() {
                 memo.remember(k, mark);
             }
         }
@@ -641,7 +641,7 @@ impl<'a> Search<'a> {
             previous = code;
             self.leaf(out);
             memo.stack.push(code);
-            if self.full(out) {
+            if self.full() {
                 break;
             }
         }
