@@ -34,7 +34,8 @@ Sizes and cost:
   all C100 takes about 4 minutes on 2 threads, all C150 about half a day, IPR C200 about a week,
   C1000 about a million years. Before a run expected to take over a minute or 4 GB of memory, a
   note on stderr gives the isomer count, time and peak memory from a model fitted to measured
-  runs (good to a factor of about two; --quiet hides it); the run then starts without asking.
+  runs (within a factor of about two up to C104, an order-of-magnitude guide beyond; --quiet
+  hides it); the run then starts without asking.
   Memory stays bounded at any size: the completion store's cap (about 1 GB, 2 GB with hexagon
   starts), a window of units whose isomers are held at once, and each thread's scratch.
   --count-only keeps no isomer. --threads above the cores this process may use is capped to
@@ -180,7 +181,7 @@ fn announce(args: &Args, spec: &Spec, work: Work) {
         .shard
         .map_or(String::new(), |s| format!(" for shard {s}"));
     eprintln!(
-        "cagerank: note: C{}: {isomers}; expect about {}{part} on {} and up to about {} of memory (a model fitted to measured runs, good to a factor of about two; see `enumerate --help`)",
+        "cagerank: note: C{}: {isomers}; expect about {}{part} on {} and up to about {} of memory (modelled from measured runs; see `enumerate --help`)",
         spec.atoms,
         duration_text(e.seconds),
         counted(e.threads as u64, "thread", "threads"),
