@@ -104,6 +104,17 @@ fn counts_say_1_isomer_not_1_isomers() {
     let (code, out, _) = run(&["enumerate", "20", "28", "--count-only", "--quiet"]);
     assert_eq!(code, 0);
     assert_eq!(out, "C20: 1 isomer\nC28: 2 isomers\n");
+    // A shard's count says it is a part: the shards of C60 add up to 1812 (OEIS A007894).
+    let mut total = 0;
+    for k in 1..=3 {
+        let shard = format!("{k}/3");
+        let (code, out, _) = run(&["enumerate", "60", "--count-only", "--shard", &shard]);
+        assert_eq!(code, 0);
+        let (label, n) = out.trim().split_once(": ").unwrap();
+        assert_eq!(label, format!("C60 (shard {k}/3)"));
+        total += n.trim_end_matches(" isomers").parse::<u64>().unwrap();
+    }
+    assert_eq!(total, 1812);
 }
 
 #[test]

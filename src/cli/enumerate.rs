@@ -151,7 +151,11 @@ fn count_line(args: &Args, atoms: u64, count: u64) -> String {
         } else {
             counted(count, "isomer", "isomers")
         };
-        format!("C{atoms}: {counted}")
+        // A shard's count is only its part of the list.
+        let part = args
+            .shard
+            .map_or(String::new(), |s| format!(" (shard {s})"));
+        format!("C{atoms}{part}: {counted}")
     }
 }
 
