@@ -1,5 +1,10 @@
 //! `cagerank enumerate`: list every isomer of the requested sizes, or write them scored into a
 //! catalogue (resumably, committing finished units every few seconds).
+//!
+//! Before a long run it says what the run will cost (`enumerate::estimate`), and it caps the
+//! thread count at what the machine offers; the text listing is a table per size whose columns
+//! are grouped under the headings `show` uses (identity, topology, electronic structure,
+//! symmetry), units in the labels. `--json` lines keep their keys.
 
 use super::output::{counted, write_line, Out};
 use super::progress;
@@ -7,7 +12,8 @@ use super::query::catalogue_error;
 use super::sizes::{parse_sizes, Size};
 use super::CliError;
 use cagerank::catalogue::{self, made_by, Record, RunInfo, ShardId, Writer};
-use cagerank::enumerate::{self, Found, Isomer, Options, Shard, Spec};
+use cagerank::enumerate::{self, Found, Isomer, Options, Shard, Spec, Work};
+use cagerank::id::{IsomerId, List};
 use cagerank::score::{self, huckel, Descriptors, ScoreError, Scored};
 use serde_json::json;
 use std::ops::ControlFlow;
@@ -19,15 +25,35 @@ use std::time::{Duration, Instant};
 /// One commit is one small file and an fsync, so a few seconds keep its cost invisible.
 const COMMIT_EVERY: Duration = Duration::from_secs(3);
 
+/// What `enumerate --help` says about size, time, memory and threads.
+const LIMITS_HELP: &str = "\
+Sizes and cost:
+  Any even atom count from 20 (no fullerene has 22) up to 100000 is accepted. Finding one isomer
+  near the start of a list takes seconds even at C1000 (`show C1000:1`), but a whole list grows
+  as about n^9 (Thurston 1998):
+  all C100 takes about 4 minutes on 2 threads, all C150 about half a day, IPR C200 about a week,
+  C1000 about a million years. Before a run expected to take over a minute or 4 GB of memory, a
+  note on stderr gives the isomer count, time and peak memory from a model fitted to measured
+  runs (within a factor of about two up to C104, an order-of-magnitude guide beyond; --quiet
+  hides it); the run then starts without asking.
+  Memory stays bounded at any size: the completion store's cap (about 1 GB, 2 GB with hexagon
+  starts), a window of units whose isomers are held at once, and each thread's scratch.
+  --count-only keeps no isomer. --threads above the cores this process may use is capped to
+  them, with a note.";
+
 #[derive(clap::Args, Debug)]
+#[command(after_long_help = LIMITS_HELP)]
 pub struct Args {
-    /// Atom counts: even numbers or inclusive ranges such as 60..100.
+    /// Atom counts: even numbers or inclusive ranges such as 60..100 (up to 100000; see the
+    /// cost notes below).
     #[arg(required = true, value_name = "SIZES")]
     pub sizes: Vec<String>,
     /// Only isomers obeying the isolated-pentagon rule (no two pentagons share an edge).
     #[arg(long)]
     pub ipr: bool,
-    /// Worker threads (default: one per core). Output does not depend on it.
+    /// Worker threads (default: one per core). Output does not depend on it. More threads
+    /// than the machine offers (its cores, or this process's share of them) are capped to
+    /// that, with a note.
     #[arg(long, default_value_t = 0)]
     pub threads: usize,
     /// Run part K of N (1-based) of the search, e.g. for a SLURM job array; isomer numbers are
@@ -40,7 +66,8 @@ pub struct Args {
     /// One JSON object per line instead of text.
     #[arg(long)]
     pub json: bool,
-    /// No progress bar and no notes (warnings are still printed).
+    /// No progress bar and no notes, such as the estimate of time and memory printed before a
+    /// run expected to take over a minute (warnings are still printed).
     #[arg(long)]
     pub quiet: bool,
     /// Also search spirals starting on a hexagon even where pentagon starts are checked to find
@@ -61,8 +88,18 @@ pub struct Args {
     pub catalogue: Option<Option<PathBuf>>,
 }
 
-pub fn run(args: Args) -> Result<(), CliError> {
+pub fn run(mut args: Args) -> Result<(), CliError> {
     let sizes = parse_sizes(&args.sizes)?;
+    let cap = enumerate::max_threads();
+    if args.threads > cap {
+        if !args.quiet {
+            eprintln!(
+                "cagerank: note: --threads {} capped to {cap}, the cores this machine offers; more threads would only share them",
+                args.threads
+            );
+        }
+        args.threads = cap;
+    }
     let mut out = Out::stdout();
     for size in sizes {
         match size {
@@ -114,7 +151,97 @@ fn count_line(args: &Args, atoms: u64, count: u64) -> String {
         } else {
             counted(count, "isomer", "isomers")
         };
-        format!("C{atoms}: {counted}")
+        // A shard's count is only its part of the list.
+        let part = args
+            .shard
+            .map_or(String::new(), |s| format!(" (shard {s})"));
+        format!("C{atoms}{part}: {counted}")
+    }
+}
+
+/// A run expected to take longer than this gets a note with its estimate first.
+const LONG_RUN: Duration = Duration::from_secs(60);
+
+/// So does one expected to need more memory than this.
+const LARGE_RUN_BYTES: f64 = 4.0 * (1u64 << 30) as f64;
+
+/// Says before a long or large run what it will take (one line on stderr; `--quiet` hides it).
+fn announce(args: &Args, spec: &Spec, work: Work) {
+    if args.quiet {
+        return;
+    }
+    let shards = args.shard.map_or(1, |s| s.count);
+    let e = enumerate::estimate(spec, args.threads, shards, work);
+    if e.seconds < LONG_RUN.as_secs_f64() && e.bytes < LARGE_RUN_BYTES {
+        return;
+    }
+    let list = if spec.ipr { "IPR isomers" } else { "isomers" };
+    let isomers = if e.published {
+        format!("{} {list} (published count)", grouped(e.isomers as u64))
+    } else {
+        format!("about {} {list} (modelled count)", approximately(e.isomers))
+    };
+    let part = args
+        .shard
+        .map_or(String::new(), |s| format!(" for shard {s}"));
+    eprintln!(
+        "cagerank: note: C{}: {isomers}; expect about {}{part} on {} and up to about {} of memory (modelled from measured runs; see `enumerate --help`)",
+        spec.atoms,
+        duration_text(e.seconds),
+        counted(e.threads as u64, "thread", "threads"),
+        bytes_text(e.bytes),
+    );
+}
+
+/// 285914 -> "285,914".
+fn grouped(n: u64) -> String {
+    let digits = n.to_string();
+    let mut out = String::new();
+    for (i, c) in digits.chars().enumerate() {
+        if i > 0 && (digits.len() - i) % 3 == 0 {
+            out.push(',');
+        }
+        out.push(c);
+    }
+    out
+}
+
+/// Two significant figures, in scientific notation past a million.
+fn approximately(x: f64) -> String {
+    if x < 1e6 {
+        grouped(x.round() as u64)
+    } else {
+        format!("{x:.1e}")
+    }
+}
+
+/// "45 s", "3.9 min", "2.1 h", "5.0 days", "3.1e12 years".
+fn duration_text(seconds: f64) -> String {
+    const MINUTE: f64 = 60.0;
+    const HOUR: f64 = 3600.0;
+    const DAY: f64 = 86_400.0;
+    const YEAR: f64 = 365.25 * DAY;
+    if seconds < MINUTE {
+        format!("{seconds:.0} s")
+    } else if seconds < HOUR {
+        format!("{:.1} min", seconds / MINUTE)
+    } else if seconds < DAY {
+        format!("{:.1} h", seconds / HOUR)
+    } else if seconds < YEAR {
+        format!("{:.1} days", seconds / DAY)
+    } else {
+        format!("{} years", approximately(seconds / YEAR))
+    }
+}
+
+fn bytes_text(bytes: f64) -> String {
+    const GB: f64 = 1e9;
+    if bytes < GB {
+        format!("{:.0} MB", bytes / 1e6)
+    } else if bytes < 1e6 * GB {
+        format!("{:.1} GB", bytes / GB)
+    } else {
+        format!("{:.1e} GB", bytes / GB)
     }
 }
 
@@ -124,6 +251,12 @@ fn run_size(out: &mut Out, args: &Args, atoms: u64) -> Result<(), CliError> {
         huckel::occupation(atoms as usize, args.charge.charge)
             .map_err(|e| CliError::usage(e.to_string()))?;
     }
+    let work = if args.count_only && args.catalogue.is_none() {
+        Work::Count
+    } else {
+        Work::Score
+    };
+    announce(args, &spec, work);
     if let Some(dir) = &args.catalogue {
         return write_catalogue(out, args, &spec, dir.as_deref());
     }
@@ -132,6 +265,17 @@ fn run_size(out: &mut Out, args: &Args, atoms: u64) -> Result<(), CliError> {
         shard: args.shard,
     };
     let bar = progress::bar(0, &format!("C{atoms}"), args.quiet);
+    if args.count_only {
+        let count = enumerate::count_run(&spec, &opts, |done, total| {
+            bar.set_length(total as u64);
+            bar.set_position(done as u64);
+        })
+        .map_err(|e| CliError::failed(e.to_string()))?;
+        bar.finish_and_clear();
+        return write_line(out, &count_line(args, atoms, count));
+    }
+    let table = Table::new(args, &spec);
+    let mut header = (!args.json).then(|| table.header(args, &spec));
     let mut count = 0u64;
     let mut failure = None;
     let score = |f: &Found| {
@@ -150,10 +294,19 @@ fn run_size(out: &mut Out, args: &Args, atoms: u64) -> Result<(), CliError> {
             let Some(scored) = scored else {
                 return ControlFlow::Continue(());
             };
+            // The header waits for the first isomer, so that a failure prints nothing else.
+            let header = header.take().unwrap_or_default();
             match scored
                 .map_err(|e| CliError::failed(format!("scoring {}: {e}", iso.spiral)))
-                .and_then(|d| write_line(out, &isomer_line(args, atoms, &iso, d)))
-            {
+                .and_then(|d| {
+                    header.iter().try_for_each(|h| write_line(out, h))?;
+                    let line = if args.json {
+                        json_line(args, &iso, d)
+                    } else {
+                        table.row(&iso, &d)
+                    };
+                    write_line(out, &line)
+                }) {
                 // Nobody reads the rest (e.g. `| head`): stop instead of enumerating on.
                 Ok(()) if out.is_closed() => ControlFlow::Break(()),
                 Ok(()) => ControlFlow::Continue(()),
@@ -169,8 +322,8 @@ fn run_size(out: &mut Out, args: &Args, atoms: u64) -> Result<(), CliError> {
     if let Some(e) = failure {
         return Err(e);
     }
-    if args.count_only {
-        write_line(out, &count_line(args, atoms, count))?;
+    if count == 0 && !args.json {
+        write_line(out, &count_line(args, atoms, 0))?;
     }
     Ok(())
 }
@@ -284,12 +437,7 @@ struct Batches {
 
 impl Batches {
     fn new(threads: usize) -> Batches {
-        let threads = if threads == 0 {
-            rayon::current_num_threads()
-        } else {
-            threads
-        }
-        .max(1);
+        let threads = enumerate::worker_threads(threads);
         Batches {
             at: 0,
             size: 4 * threads,
@@ -316,30 +464,132 @@ impl Batches {
     }
 }
 
-fn isomer_line(args: &Args, atoms: u64, iso: &Isomer, d: Descriptors) -> String {
-    if args.json {
-        let mut v = serde_json::to_value(Scored::new(&iso.spiral, iso.number, iso.ipr_number, d))
-            .unwrap_or_default();
-        if let Some(m) = v.as_object_mut() {
-            m.insert("ipr".into(), json!(args.ipr));
-            m.remove("rank");
-        }
-        return v.to_string();
+fn json_line(args: &Args, iso: &Isomer, d: Descriptors) -> String {
+    let mut v = serde_json::to_value(Scored::new(&iso.spiral, iso.number, iso.ipr_number, d))
+        .unwrap_or_default();
+    if let Some(m) = v.as_object_mut() {
+        m.insert("ipr".into(), json!(args.ipr));
+        m.remove("rank");
     }
-    let id = match (iso.number, iso.ipr_number) {
-        (Some(n), Some(i)) => format!("C{atoms}:{n} (IPR {i})"),
-        (Some(n), None) => format!("C{atoms}:{n}"),
-        (None, Some(i)) => format!("C{atoms} IPR:{i}"),
-        (None, None) => format!("C{atoms} unit {}", iso.unit),
-    };
-    format!(
-        "{id:<22} {:<5} Np {:>2}  gap {:>7.4}  {:<15} spiral {}",
-        d.point_group.name(),
-        d.pentagon_adjacencies,
-        d.gap,
-        d.shell.name(),
-        iso.spiral
-    )
+    v.to_string()
+}
+
+/// The text listing of one size: a title, a row of group headings (the ones `show` uses) over
+/// a row of column labels with units, then one aligned row per isomer. Widths come from the
+/// longest ID the list can hold, so every row of a size lines up.
+struct Table {
+    atoms: u32,
+    /// Width of the ID column, and of the IPR-ID column (0: no such column).
+    id: usize,
+    ipr_id: usize,
+}
+
+/// Column widths after the IDs: pentagon adjacencies, gap, shell, point group.
+const NP: usize = 13;
+const GAP: usize = 12;
+const SHELL: usize = 15;
+const GROUP: usize = 11;
+
+impl Table {
+    fn new(args: &Args, spec: &Spec) -> Table {
+        let (isomers, _) = enumerate::estimate::isomers(spec);
+        let digits = (isomers.max(1.0).log10().floor() as usize + 1).max(1);
+        let atoms = spec.atoms;
+        let numbered = args.shard.is_none();
+        // "C60:all-" or "C84:IPR-" before the number.
+        let prefix = format!("C{atoms}:all-").len();
+        let id = if numbered {
+            prefix + digits
+        } else {
+            format!("C{atoms} (unit 0000)").len()
+        };
+        // No IPR fullerene has fewer than 60 atoms or 62-68 (OEIS A046880), so those lists
+        // get no IPR-ID column.
+        let has_ipr = atoms == 60 || atoms >= 70;
+        let ipr_id = if numbered && !spec.ipr && has_ipr {
+            prefix + digits
+        } else {
+            0
+        };
+        Table {
+            atoms,
+            id: id.max(8),
+            ipr_id: if ipr_id == 0 { 0 } else { ipr_id.max(8) },
+        }
+    }
+
+    fn header(&self, args: &Args, spec: &Spec) -> Vec<String> {
+        let list = if spec.ipr {
+            "IPR list"
+        } else {
+            "complete list"
+        };
+        let numbers = match args.shard {
+            Some(s) => format!("shard {s}, numbered when the shards are merged"),
+            None => "in spiral order".to_string(),
+        };
+        let ids = self.id + if self.ipr_id > 0 { 2 + self.ipr_id } else { 0 };
+        let (id_label, ipr_label) = if spec.ipr {
+            ("IPR ID", "")
+        } else {
+            ("ID", "IPR ID")
+        };
+        let mut labels = format!("{id_label:<w$}", w = self.id);
+        if self.ipr_id > 0 {
+            labels.push_str(&format!("  {ipr_label:<w$}", w = self.ipr_id));
+        }
+        vec![
+            format!(
+                "C{} {list}, {numbers}; Hückel values for charge {:+}",
+                self.atoms, args.charge.charge
+            ),
+            format!(
+                "{:<ids$}  {:<NP$}  {:<w$}  {:<GROUP$}  {}",
+                "identity",
+                "topology",
+                "electronic structure (Hückel)",
+                "symmetry",
+                "identity",
+                w = GAP + 2 + SHELL
+            ),
+            format!(
+                "{labels}  {:>NP$}  {:>GAP$}  {:<SHELL$}  {:<GROUP$}  {}",
+                "pentagon adj.",
+                "gap (|beta|)",
+                "shell",
+                "point group",
+                "canonical spiral (pentagon positions)"
+            ),
+        ]
+    }
+
+    fn row(&self, iso: &Isomer, d: &Descriptors) -> String {
+        let atoms = self.atoms;
+        let (id, ipr_id) = match (iso.number, iso.ipr_number) {
+            (Some(n), i) => (
+                IsomerId::new(atoms, List::All, n).to_string(),
+                i.map(|i| IsomerId::new(atoms, List::Ipr, i).to_string()),
+            ),
+            (None, Some(i)) => (IsomerId::new(atoms, List::Ipr, i).to_string(), None),
+            (None, None) => (format!("C{atoms} (unit {})", iso.unit), None),
+        };
+        let mut line = format!("{id:<w$}", w = self.id);
+        if self.ipr_id > 0 {
+            line.push_str(&format!(
+                "  {:<w$}",
+                ipr_id.unwrap_or_default(),
+                w = self.ipr_id
+            ));
+        }
+        format!(
+            "{line}  {:>NP$}  {:>GAP$.4}  {:<SHELL$}  {:<GROUP$}  {}",
+            d.pentagon_adjacencies,
+            d.gap,
+            d.shell.name(),
+            d.point_group.name(),
+            iso.spiral
+        )
+    }
 }
 
 #[cfg(test)]

@@ -11,10 +11,11 @@
 //! order-free, so they run in parallel. Reading positions from a catalogue is left to
 //! `identify::numbers`, which calls this module when no catalogue holds the size.
 
-use super::{run_unit, units, Found, Isomer, Spec, Unit};
+use super::{run_unit, run_unit_limited, units, Found, Isomer, Spec, Unit};
 use crate::cage::FaceSet;
 use crate::spiral::Spiral;
 use rayon::prelude::*;
+use std::cell::Cell;
 
 /// Fullerenes with n = 20, 22, ..., 100 atoms: OEIS A007894 (from memory; n = 20..70 and 100
 /// are also in the project's domain notes, and every value equals the count the search gives:
@@ -40,6 +41,18 @@ const COUNT_WINDOW: usize = 8;
 /// Largest window when walking units in order to find a position.
 const MAX_WALK_WINDOW: usize = 64;
 
+/// The published table's count for a list, whatever the search would find (none past the
+/// tables): the anchors of [`super::estimate`]'s model.
+pub(super) fn table_count(atoms: u32, ipr: bool) -> Option<u64> {
+    if ipr {
+        return published_ipr(atoms);
+    }
+    match atoms {
+        20..=100 if atoms % 2 == 0 => Some(ALL_COUNTS[(atoms as usize - 20) / 2]),
+        _ => None,
+    }
+}
+
 /// Published number of IPR fullerenes with `atoms` atoms, where the table reaches.
 fn published_ipr(atoms: u32) -> Option<u64> {
     match atoms {
@@ -55,13 +68,7 @@ pub fn published_count(spec: &Spec) -> Option<u64> {
     if spec.face_set != FaceSet::Fullerene || !spec.starts_verified() || !spec.spiral_complete() {
         return None;
     }
-    if spec.ipr {
-        return published_ipr(spec.atoms);
-    }
-    match spec.atoms {
-        20..=100 if spec.atoms % 2 == 0 => Some(ALL_COUNTS[(spec.atoms as usize - 20) / 2]),
-        _ => None,
-    }
+    table_count(spec.atoms, spec.ipr)
 }
 
 /// Published (list length, IPR isomers in it) for counting from the end.
@@ -85,6 +92,7 @@ fn tally_found(found: &[Found]) -> (u64, u64) {
 /// called after each window.
 fn tally(spec: &Spec, todo: &[Unit], progress: &mut dyn FnMut(usize, usize)) -> (u64, u64) {
     let (mut all, mut ipr, mut done) = (0, 0, 0);
+    progress(0, todo.len());
     for window in todo.chunks(COUNT_WINDOW) {
         let (a, i) = window
             .par_iter()
@@ -195,20 +203,27 @@ pub fn isomer_numbered(
 }
 
 /// Runs units in windows that grow from 1 to [`MAX_WALK_WINDOW`], in the order of `order`,
-/// handing each unit's results to `visit` until it returns `Some`.
+/// handing each unit's results to `visit` until it returns `Some`. Each unit of a window runs
+/// only as far as its first `limit()` isomers (the count still needed when the window starts):
+/// a unit cut short holds the target, so no cut count is ever added up. Progress is reported
+/// once before the first window too, so that a bar appears while a single slow unit runs
+/// (the first unit of C1000 is most of a lookup of C1000:all-1).
 fn walk<T>(
     spec: &Spec,
     all: &[Unit],
     order: &[usize],
+    limit: impl Fn() -> usize,
     mut progress: impl FnMut(usize, usize),
     mut visit: impl FnMut(usize, Vec<Found>) -> Option<T>,
 ) -> Option<T> {
     let (mut at, mut width) = (0, 1);
+    progress(0, order.len());
     while at < order.len() {
         let window = &order[at..(at + width).min(order.len())];
+        let most = limit();
         let results: Vec<Vec<Found>> = window
             .par_iter()
-            .map(|&u| run_unit(spec, &all[u]))
+            .map(|&u| run_unit_limited(spec, &all[u], most))
             .collect();
         for (&u, found) in window.iter().zip(results) {
             if let Some(hit) = visit(u, found) {
@@ -229,15 +244,17 @@ fn walk_front(
     progress: impl FnMut(usize, usize),
 ) -> Option<Isomer> {
     let order: Vec<usize> = (0..all.len()).collect();
-    let (mut before, mut ipr_before) = (0u64, 0u64);
-    walk(spec, all, &order, progress, |u, found| {
+    let before = Cell::new(0u64);
+    let mut ipr_before = 0u64;
+    let still_needed = || usize::try_from(number - before.get()).unwrap_or(usize::MAX);
+    walk(spec, all, &order, still_needed, progress, |u, found| {
         let (a, i) = tally_found(&found);
-        if before + a < number {
-            before += a;
+        if before.get() + a < number {
+            before.set(before.get() + a);
             ipr_before += i;
             return None;
         }
-        let k = (number - before - 1) as usize;
+        let k = (number - before.get() - 1) as usize;
         let ipr = ipr_before + tally_found(&found[..=k]).1;
         Some(numbered(spec, found[k].clone(), u, number, ipr))
     })
@@ -254,15 +271,23 @@ fn walk_back(
     let order: Vec<usize> = (0..all.len()).rev().collect();
     let (mut behind, mut ipr_behind) = (0u64, 0u64);
     let total = published_count(spec)?;
-    walk(spec, all, &order, progress, |u, found| {
-        let (a, i) = tally_found(&found);
-        if behind + a <= after {
-            behind += a;
-            ipr_behind += i;
-            return None;
-        }
-        let k = found.len() - 1 - (after - behind) as usize;
-        let ipr = ipr_total - ipr_behind - tally_found(&found[k + 1..]).1;
-        Some(numbered(spec, found[k].clone(), u, total - after, ipr))
-    })
+    // Counting from the back needs every unit's whole list.
+    walk(
+        spec,
+        all,
+        &order,
+        || usize::MAX,
+        progress,
+        |u, found| {
+            let (a, i) = tally_found(&found);
+            if behind + a <= after {
+                behind += a;
+                ipr_behind += i;
+                return None;
+            }
+            let k = found.len() - 1 - (after - behind) as usize;
+            let ipr = ipr_total - ipr_behind - tally_found(&found[k + 1..]).1;
+            Some(numbered(spec, found[k].clone(), u, total - after, ipr))
+        },
+    )
 }

@@ -31,9 +31,11 @@
 //! that share a state are the same start. Each such sequence is therefore wound to its leaf and
 //! rejected there, which is why hexagon starts cost several times more (docs/performance.md).
 
+pub mod estimate;
 mod lookup;
 mod store;
 
+pub use estimate::{estimate, Estimate, Work};
 pub use lookup::{isomer_numbered, number_of, number_of_from, published_count, End};
 
 use crate::cage::FaceSet;
@@ -384,6 +386,14 @@ struct Search<'a> {
     /// An IPR fullerene run, where [`pentagons_fit`] bounds the pentagons still to come
     /// (except while cutting units, see [`units`]).
     isolated: bool,
+    /// Stop after this many isomers (a lookup that needs only the first few of a unit);
+    /// `usize::MAX` for all.
+    limit: usize,
+    /// Isomers found so far.
+    found: usize,
+    /// Keep each isomer found, or only count them (a count of C200 would otherwise hold a
+    /// unit's hundred thousand spirals per thread).
+    keep: bool,
 }
 
 /// What the search's winders keep (see [`Record`]): rotations where completed sequences are
@@ -416,6 +426,9 @@ impl<'a> Search<'a> {
             rotation_scratch: RotationScratch::default(),
             total,
             isolated: spec.ipr && spec.face_set == FaceSet::Fullerene,
+            limit: usize::MAX,
+            found: 0,
+            keep: true,
         }
     }
 
@@ -483,21 +496,45 @@ impl<'a> Search<'a> {
         next
     }
 
-    /// Visits every canonical sequence below the current prefix. Near the end of the sequence
-    /// the search is handed to [`Search::solve`], which shares work between equal boundaries.
+    /// Visits every canonical sequence below the current prefix (or the first
+    /// [`Search::limit`]). Near the end of the sequence the search is handed to
+    /// [`Search::solve`], which shares work between equal boundaries.
+    ///
+    /// Iterative, with an explicit stack of one small entry per face: the levels above the
+    /// store are as many as the cage has faces less [`COMPLETE_MEMO_DEPTH`], and recursing
+    /// once per face overflowed a worker thread's stack from about C10000 on (C100000 aborted).
+    /// `solve` below it recurses at most [`MAX_MEMO_DEPTH`] levels.
     fn descend(&mut self, used: u32, out: &mut Vec<Found>, memo: &mut Memo) {
-        if self.total - self.winder.sizes().len() <= memo.depth {
-            let mark = memo.stack.len();
-            self.solve(used, out, memo);
-            memo.stack.truncate(mark);
-            return;
-        }
-        for &s in self.spec.face_set.sizes() {
+        let sizes = self.spec.face_set.sizes();
+        // Per wound level from the starting prefix on: curvature used, next size to try.
+        let mut levels: Vec<(u32, usize)> = vec![(used, 0)];
+        while let Some(&(used, next)) = levels.last() {
+            let enter_store = next == 0 && self.total - self.winder.sizes().len() <= memo.depth;
+            if enter_store {
+                let mark = memo.stack.len();
+                self.solve(used, out, memo);
+                memo.stack.truncate(mark);
+            }
+            if enter_store || next == sizes.len() || self.full() {
+                levels.pop();
+                if !levels.is_empty() {
+                    self.winder.pop();
+                }
+                continue;
+            }
+            if let Some(top) = levels.last_mut() {
+                top.1 = next + 1;
+            }
+            let s = sizes[next];
             if self.allowed(s) && self.try_push(s, used) {
-                self.descend(used + 6 - s as u32, out, memo);
-                self.winder.pop();
+                levels.push((used + 6 - s as u32, 0));
             }
         }
+    }
+
+    /// True once the search has found as many isomers as it was asked for.
+    fn full(&self) -> bool {
+        self.found >= self.limit
     }
 
     /// Runs every completion of the current prefix through [`Search::leaf`] and appends to
@@ -544,6 +581,11 @@ impl<'a> Search<'a> {
         let mark = memo.stack.len();
         let bits = code_bits(self.spec.face_set);
         for (i, &s) in self.spec.face_set.sizes().iter().enumerate() {
+            if self.full() {
+                // Stopped early: the codes below `mark` are not every completion, so they are
+                // not stored.
+                return;
+            }
             if self.allowed(s) && self.try_push(s, used) {
                 let child = memo.stack.len();
                 self.solve(used + 6 - s as u32, out, memo);
@@ -554,7 +596,9 @@ impl<'a> Search<'a> {
             }
         }
         if let Some(k) = key {
-            memo.remember(k, mark);
+            if !self.full() {
+                memo.remember(k, mark);
+            }
         }
     }
 
@@ -597,6 +641,9 @@ impl<'a> Search<'a> {
             previous = code;
             self.leaf(out);
             memo.stack.push(code);
+            if self.full() {
+                break;
+            }
         }
         for _ in 0..wound {
             self.winder.pop();
@@ -616,12 +663,15 @@ impl<'a> Search<'a> {
         if let Canonicity::Canonical { automorphisms } =
             test_canonical(&self.dual, sizes, &mut self.reader)
         {
-            let ipr = self.spec.ipr || !self.dual.pentagons_touch();
-            out.push(Found {
-                spiral: Spiral::from_wound(sizes.to_vec()),
-                automorphisms,
-                ipr,
-            });
+            self.found += 1;
+            if self.keep {
+                let ipr = self.spec.ipr || !self.dual.pentagons_touch();
+                out.push(Found {
+                    spiral: Spiral::from_wound(sizes.to_vec()),
+                    automorphisms,
+                    ipr,
+                });
+            }
         }
     }
 }
@@ -662,30 +712,55 @@ const PIECE_LEVELS: usize = 3;
 
 /// Every isomer whose canonical spiral starts with the unit's prefix, in spiral order.
 pub fn run_unit(spec: &Spec, unit: &Unit) -> Vec<Found> {
+    run_unit_with(spec, unit, usize::MAX, true).0
+}
+
+/// The first `limit` isomers of [`run_unit`]'s list (all of them if it is shorter), without
+/// searching past the last one returned. A lookup of C1000:all-1 needs one isomer of a unit
+/// whose whole list would never finish. With a limit the unit runs on the calling thread, as
+/// its pieces would have to wait for the ones before them anyway.
+pub fn run_unit_limited(spec: &Spec, unit: &Unit, limit: usize) -> Vec<Found> {
+    run_unit_with(spec, unit, limit, true).0
+}
+
+/// The number of isomers [`run_unit`] would return, keeping none of them.
+pub fn count_unit(spec: &Spec, unit: &Unit) -> u64 {
+    run_unit_with(spec, unit, usize::MAX, false).1
+}
+
+/// The unit's first `limit` isomers (kept if `keep`) and how many there were.
+fn run_unit_with(spec: &Spec, unit: &Unit, limit: usize, keep: bool) -> (Vec<Found>, u64) {
     store::widen(spec.all_starts);
     let mut search = Search::new(spec);
     let mut used = 0;
     for &s in &unit.prefix {
         if !search.try_push(s, used) {
-            return Vec::new();
+            return (Vec::new(), 0);
         }
         used += 6 - s as u32;
     }
     // Only cut where the pieces stay above the completion store's levels and the leaves.
-    if spec.faces() <= unit.prefix.len() + memo_depth(spec) + PIECE_LEVELS {
-        return run_piece(spec, &search.winder);
+    if limit < usize::MAX || spec.faces() <= unit.prefix.len() + memo_depth(spec) + PIECE_LEVELS {
+        return run_piece(spec, &search.winder, limit, keep);
     }
     let mut pieces = vec![search.winder.clone()];
     for _ in 0..PIECE_LEVELS {
         pieces = search.next_level(&pieces);
     }
-    let found: Vec<Vec<Found>> = pieces.par_iter().map(|w| run_piece(spec, w)).collect();
-    found.into_iter().flatten().collect()
+    let found: Vec<(Vec<Found>, u64)> = pieces
+        .par_iter()
+        .map(|w| run_piece(spec, w, usize::MAX, keep))
+        .collect();
+    let count = found.iter().map(|f| f.1).sum();
+    (found.into_iter().flat_map(|f| f.0).collect(), count)
 }
 
-/// Every canonical sequence below the prefix wound in `prefix`, on the calling thread.
-fn run_piece(spec: &Spec, prefix: &Winder) -> Vec<Found> {
+/// Every canonical sequence below the prefix wound in `prefix` (the first `limit`), on the
+/// calling thread, kept if `keep`, and their number.
+fn run_piece(spec: &Spec, prefix: &Winder, limit: usize, keep: bool) -> (Vec<Found>, u64) {
     let mut search = Search::new(spec);
+    search.limit = limit;
+    search.keep = keep;
     search.winder.clone_from(prefix);
     let used = search.used_budget();
     let mut out = Vec::new();
@@ -695,7 +770,7 @@ fn run_piece(spec: &Spec, prefix: &Winder) -> Vec<Found> {
         memo.prepare(spec);
         search.descend(used, &mut out, memo);
     });
-    out
+    (out, search.found as u64)
 }
 
 /// Streams every isomer in increasing spiral order. Memory stays bounded: units are run in
@@ -735,11 +810,8 @@ pub fn run_units_mapped<R: Send>(
     map: impl Fn(&Found) -> R + Sync,
     mut on_window: impl FnMut(Vec<(u32, Vec<(Found, R)>)>) -> ControlFlow<()>,
 ) -> Result<(), EnumerateError> {
-    let pool = rayon::ThreadPoolBuilder::new()
-        .num_threads(threads)
-        .build()
-        .map_err(|e| EnumerateError::Threads(e.to_string()))?;
-    let window = 256 * pool.current_num_threads().max(1);
+    let pool = pool(threads)?;
+    let window = window_units(spec, pool.current_num_threads());
     for chunk in units.chunks(window) {
         let results: Vec<(u32, Vec<(Found, R)>)> = pool.install(|| {
             chunk
@@ -799,12 +871,73 @@ pub fn enumerate_mapped<R: Send>(
 
 /// Number of isomers of a size (all units, every thread).
 pub fn count(spec: &Spec, threads: usize) -> Result<u64, EnumerateError> {
-    let pool = rayon::ThreadPoolBuilder::new()
-        .num_threads(threads)
+    let opts = Options {
+        threads,
+        shard: None,
+    };
+    count_run(spec, &opts, |_, _| {})
+}
+
+/// Number of isomers of a run (this shard's units), keeping none of them, so that memory is
+/// the store and the threads' scratch whatever the size. `progress(done, total)` is called
+/// after each window of a few units per thread.
+pub fn count_run(
+    spec: &Spec,
+    opts: &Options,
+    mut progress: impl FnMut(usize, usize),
+) -> Result<u64, EnumerateError> {
+    let pool = pool(opts.threads)?;
+    let mine: Vec<Unit> = units(spec)
+        .into_iter()
+        .filter(|u| opts.shard.is_none_or(|s| s.owns(u.index)))
+        .collect();
+    let (mut total, mut done) = (0u64, 0usize);
+    progress(0, mine.len());
+    for window in mine.chunks(estimate::COUNT_WINDOW * pool.current_num_threads()) {
+        total += pool.install(|| window.par_iter().map(|u| count_unit(spec, u)).sum::<u64>());
+        done += window.len();
+        progress(done, mine.len());
+    }
+    Ok(total)
+}
+
+/// Most worker threads a run starts: the parallelism the operating system grants this process
+/// (its cores, or fewer under an affinity mask or a cgroup quota). More threads only share the
+/// same cores, and each costs a stack and search scratch of its own; a request for 100000
+/// threads spent its time starting them. Larger requests are capped (the CLI says so).
+pub fn max_threads() -> usize {
+    std::thread::available_parallelism().map_or(1, std::num::NonZeroUsize::get)
+}
+
+/// The worker threads a run with `requested` threads (0: one per core) starts.
+pub fn worker_threads(requested: usize) -> usize {
+    let cap = max_threads();
+    if requested == 0 {
+        cap
+    } else {
+        requested.min(cap)
+    }
+}
+
+fn pool(threads: usize) -> Result<rayon::ThreadPool, EnumerateError> {
+    rayon::ThreadPoolBuilder::new()
+        .num_threads(worker_threads(threads))
         .build()
-        .map_err(|e| EnumerateError::Threads(e.to_string()))?;
-    let all = units(spec);
-    Ok(pool.install(|| all.par_iter().map(|u| run_unit(spec, u).len() as u64).sum()))
+        .map_err(|e| EnumerateError::Threads(e.to_string()))
+}
+
+/// Most isomers a window of results should hold at once (about 2-3 GB when scored).
+const WINDOW_ISOMERS: f64 = 4e6;
+
+/// Units per window of [`run_units_mapped`]: 256 per thread, fewer where the units are so
+/// large that their isomers would fill memory (from all C130 on; a window of all C200 would
+/// hold some 50 million scored isomers). Windows change memory, never output.
+pub(crate) fn window_units(spec: &Spec, threads: usize) -> usize {
+    let threads = threads.max(1);
+    // Every run has at least TARGET_UNITS units, so this bounds the mean unit.
+    let per_unit = estimate::isomers(spec).0 / TARGET_UNITS as f64;
+    let fit = (WINDOW_ISOMERS / per_unit.max(1.0)) as usize;
+    (estimate::LIST_WINDOW * threads).min(fit).max(threads)
 }
 
 /// The isomer with this number: in the complete list, or in the IPR list when `spec.ipr`. Runs

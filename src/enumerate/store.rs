@@ -37,6 +37,16 @@ pub(super) fn widen(wide: bool) {
     WIDE.store(wide, Ordering::Relaxed);
 }
 
+/// The most memory the store can hold under the caps for runs with (`wide`) or without
+/// hexagon starts: every shard's table at its largest slot count and its codes at their cap
+/// (about 0.94 GB, or 1.9 GB wide; peaks measured with it full were 1.0-1.1 and 2.0-2.2 GB).
+pub(super) fn most_bytes(wide: bool) -> u64 {
+    let scale = if wide { 2 } else { 1 };
+    let slots = 2 * MAX_BOUNDARIES * std::mem::size_of::<Slot>();
+    let codes = MAX_CODES * std::mem::size_of::<u32>();
+    (scale * (slots + codes)) as u64
+}
+
 /// The per-shard caps now in force: boundaries, completion codes, slots.
 fn caps() -> (usize, usize, usize) {
     let scale = if WIDE.load(Ordering::Relaxed) { 2 } else { 1 };

@@ -104,6 +104,17 @@ fn counts_say_1_isomer_not_1_isomers() {
     let (code, out, _) = run(&["enumerate", "20", "28", "--count-only", "--quiet"]);
     assert_eq!(code, 0);
     assert_eq!(out, "C20: 1 isomer\nC28: 2 isomers\n");
+    // A shard's count says it is a part: the shards of C60 add up to 1812 (OEIS A007894).
+    let mut total = 0;
+    for k in 1..=3 {
+        let shard = format!("{k}/3");
+        let (code, out, _) = run(&["enumerate", "60", "--count-only", "--shard", &shard]);
+        assert_eq!(code, 0);
+        let (label, n) = out.trim().split_once(": ").unwrap();
+        assert_eq!(label, format!("C60 (shard {k}/3)"));
+        total += n.trim_end_matches(" isomers").parse::<u64>().unwrap();
+    }
+    assert_eq!(total, 1812);
 }
 
 #[test]
@@ -144,4 +155,200 @@ fn an_odd_electron_count_is_scored_as_a_doublet() {
     // Neutral output keeps its keys: no SOMO.
     let (_, out, _) = run(&["enumerate", "82", "--ipr", "--json", "--quiet"]);
     assert!(!out.contains("somo"));
+}
+
+/// Runs the binary, killing it and failing the test if it has not finished within `seconds`
+/// (the requests below once never finished).
+fn run_within(args: &[&str], seconds: u64) -> (i32, String, String) {
+    use std::io::Read;
+    use std::process::Stdio;
+    use std::time::{Duration, Instant};
+    let mut child = Command::new(env!("CARGO_BIN_EXE_cagerank"))
+        .args(args)
+        .stdout(Stdio::piped())
+        .stderr(Stdio::piped())
+        .spawn()
+        .expect("binary runs");
+    let (mut out, mut err) = (child.stdout.take().unwrap(), child.stderr.take().unwrap());
+    let reader = std::thread::spawn(move || {
+        let mut text = String::new();
+        out.read_to_string(&mut text).unwrap();
+        text
+    });
+    let err_reader = std::thread::spawn(move || {
+        let mut text = String::new();
+        err.read_to_string(&mut text).unwrap();
+        text
+    });
+    let deadline = Instant::now() + Duration::from_secs(seconds);
+    let status = loop {
+        if let Some(status) = child.try_wait().unwrap() {
+            break status;
+        }
+        if Instant::now() > deadline {
+            child.kill().unwrap();
+            child.wait().unwrap();
+            panic!("{args:?} did not finish within {seconds} s");
+        }
+        std::thread::sleep(Duration::from_millis(50));
+    };
+    (
+        status.code().unwrap_or(-1),
+        reader.join().unwrap(),
+        err_reader.join().unwrap(),
+    )
+}
+
+/// The first line of stderr that contains `needle`, read while the command runs; the command
+/// is killed then (or after `seconds`), so a run of years is tested by its first lines.
+fn first_stderr_line(args: &[&str], needle: &str, seconds: u64) -> Option<String> {
+    use std::io::{BufRead, BufReader};
+    use std::process::Stdio;
+    use std::sync::mpsc;
+    use std::time::Duration;
+    let mut child = Command::new(env!("CARGO_BIN_EXE_cagerank"))
+        .args(args)
+        .stdout(Stdio::null())
+        .stderr(Stdio::piped())
+        .spawn()
+        .expect("binary runs");
+    let err = child.stderr.take().unwrap();
+    let (tx, rx) = mpsc::channel();
+    let needle = needle.to_string();
+    std::thread::spawn(move || {
+        for line in BufReader::new(err).lines() {
+            let Ok(line) = line else { break };
+            if line.contains(&needle) {
+                let _ = tx.send(line);
+                return;
+            }
+        }
+    });
+    let found = rx.recv_timeout(Duration::from_secs(seconds)).ok();
+    // The run may have ended by itself (e.g. crashed); killing a finished child is harmless.
+    let _ = child.kill();
+    child.wait().unwrap();
+    found
+}
+
+#[test]
+fn thread_counts_beyond_the_machine_are_capped_with_a_note() {
+    // `--threads 100000` never finished: it spent its time starting threads. Capped, it
+    // counts C60 as usual: 1812 isomers (OEIS A007894).
+    let (code, out, err) = run_within(
+        &["enumerate", "60", "--count-only", "--threads", "100000"],
+        60,
+    );
+    assert_eq!(code, 0, "{err}");
+    assert_eq!(out, "C60: 1812 isomers\n");
+    assert_eq!(err.lines().count(), 1, "{err}");
+    assert!(err.contains("note: --threads 100000 capped to"), "{err}");
+    // Output does not depend on the thread count, capped or not.
+    let (_, listed, _) = run_within(&["enumerate", "40", "--threads", "100000", "--quiet"], 60);
+    let (_, one, _) = run(&["enumerate", "40", "--threads", "1", "--quiet"]);
+    assert_eq!(listed, one);
+    // --quiet hides the note.
+    let (_, _, err) = run_within(&["enumerate", "20", "--threads", "100000", "--quiet"], 60);
+    assert!(err.is_empty(), "{err}");
+}
+
+#[test]
+fn absurd_requests_say_how_long_and_how_much_memory_before_starting() {
+    // All C100000 would take far longer than anyone waits (isomer counts grow as n^9,
+    // Thurston 1998, from memory); it once overflowed the stack and aborted after 4.7 GB.
+    // Now the note comes first and the count runs on in bounded memory.
+    let line = first_stderr_line(
+        &["enumerate", "100000", "--count-only"],
+        "note: C100000",
+        30,
+    )
+    .expect("an estimate is printed before the run");
+    assert!(line.contains("isomers (modelled count)"), "{line}");
+    assert!(line.contains("years"), "{line}");
+    assert!(line.contains("GB of memory"), "{line}");
+    // IPR C200: 15,655,672 isomers (OEIS A046880, from memory): days, with hexagon starts.
+    let line = first_stderr_line(&["enumerate", "200", "--ipr"], "note: C200:", 30)
+        .expect("an estimate is printed before the run");
+    assert!(
+        line.contains("IPR isomers") && line.contains("days"),
+        "{line}"
+    );
+    // Published counts are named as such: all C100 has 285,914 isomers (OEIS A007894).
+    let line = first_stderr_line(&["enumerate", "100", "--count-only"], "note: C100:", 30)
+        .expect("an estimate is printed before the run");
+    assert!(line.contains("285,914 isomers (published count)"), "{line}");
+    // --quiet hides it; a short run has none.
+    assert!(
+        first_stderr_line(&["enumerate", "150", "--count-only", "--quiet"], "note", 3).is_none()
+    );
+    let (code, _, err) = run(&["enumerate", "60", "--count-only"]);
+    assert_eq!(code, 0);
+    assert!(err.is_empty(), "{err}");
+}
+
+#[test]
+fn the_first_isomer_of_c1000_is_found_in_seconds() {
+    // C1000:all-1 lies in a unit whose whole list would never finish; the lookup stops at the
+    // isomer it needs. For sizes divisible by 10 the first isomer is the (5,0) tube capped by
+    // two half dodecahedra, pentagons 1-6 and the last six faces, as the complete lists of
+    // C30-C70 show (their counts match OEIS A007894, tests/enumerate.rs); C1000 has
+    // 1000/2 + 2 = 502 faces (Euler's formula).
+    let (code, out, err) = run_within(&["show", "C1000:1", "--json"], 120);
+    assert_eq!(code, 0, "{err}");
+    let v: serde_json::Value = serde_json::from_str(out.trim()).unwrap();
+    assert_eq!(
+        v["spiral"],
+        serde_json::json!([1, 2, 3, 4, 5, 6, 497, 498, 499, 500, 501, 502])
+    );
+}
+
+#[test]
+fn text_listing_is_a_table_under_show_headings_with_units() {
+    let (code, out, err) = run(&["enumerate", "28", "--quiet"]);
+    assert_eq!(code, 0, "{err}");
+    let lines: Vec<&str> = out.lines().collect();
+    // Title, group headings, column labels, then one row per isomer: 2 for C28 (OEIS A007894).
+    assert_eq!(lines.len(), 3 + 2, "{out}");
+    assert!(lines[0].starts_with("C28 complete list"), "{out}");
+    for heading in [
+        "identity",
+        "topology",
+        "electronic structure (Hückel)",
+        "symmetry",
+    ] {
+        assert!(lines[1].contains(heading), "{heading}: {out}");
+    }
+    for label in [
+        "ID",
+        "pentagon adj.",
+        "gap (|beta|)",
+        "shell",
+        "point group",
+    ] {
+        assert!(lines[2].contains(label), "{label}: {out}");
+    }
+    // No IPR cage has 28 atoms (OEIS A046880), so there is no IPR-ID column.
+    assert!(!lines[2].contains("IPR ID"), "{out}");
+    // Columns line up: every row's spiral starts where its label does.
+    let at = lines[2].find("canonical spiral").unwrap();
+    for row in &lines[3..] {
+        let (before, spiral) = row.split_at(at);
+        assert!(
+            before.ends_with("  ") && spiral.starts_with("1 2 3 "),
+            "{out}"
+        );
+    }
+    // Hückel's C28 (Td) has an open shell (a partly filled t2 level; Fowler & Manolopoulos,
+    // An Atlas of Fullerenes, from memory).
+    let td = lines[3..]
+        .iter()
+        .find(|r| r.contains(" Td "))
+        .expect("a Td row");
+    assert!(td.contains(" open "), "{td}");
+    // A size with IPR cages gets both IDs, and --json keeps its keys (tests above).
+    let (_, out, _) = run(&["enumerate", "70", "--ipr", "--quiet"]);
+    assert!(
+        out.lines().nth(3).unwrap().starts_with("C70:IPR-1 "),
+        "{out}"
+    );
 }

@@ -482,3 +482,58 @@ fn a_spiral_without_a_size_is_wound_at_the_one_size_that_closes() {
         assert_eq!(found.closing, vec![spiral], "C{atoms}");
     }
 }
+
+#[test]
+fn a_unit_cut_short_gives_the_first_isomers_of_its_whole_list() {
+    // Lookups run units only as far as the isomer they need; what they get must be a prefix
+    // of the full unit, for complete and IPR lists. The full lists are checked against OEIS
+    // above (C60: 1812 isomers, IPR C80: 7).
+    for spec in [
+        Spec::fullerene(60, false).unwrap(),
+        Spec::fullerene(80, true).unwrap(),
+    ] {
+        let mut total = 0;
+        for unit in enumerate::units(&spec) {
+            let whole = enumerate::run_unit(&spec, &unit);
+            total += whole.len();
+            for limit in [1, 2, 5] {
+                let first = enumerate::run_unit_limited(&spec, &unit, limit);
+                let n = limit.min(whole.len());
+                assert_eq!(first.len(), n);
+                for (a, b) in first.iter().zip(&whole) {
+                    assert_eq!(a.spiral, b.spiral);
+                }
+            }
+        }
+        assert_eq!(total as u64, count(u64::from(spec.atoms), spec.ipr));
+    }
+}
+
+#[test]
+fn deep_searches_do_not_overflow_the_stack_and_report_progress_first() {
+    // The search once recursed once per face and overflowed a worker's stack from about
+    // C10000 on (all C100000 aborted); finding C20000:all-1 (10002 faces deep) must work. For sizes divisible by 10 the first isomer is the (5,0) tube
+    // capped by half dodecahedra: pentagons 1-6 and the last six faces, as the complete lists
+    // show for C30-C70 (checked here against the full enumeration, whose counts match OEIS).
+    for n in [30u64, 40, 50, 60, 70] {
+        let first = &all(n, false, 0, None)[0];
+        let faces = (n / 2 + 2) as u32;
+        let mut expected: Vec<u32> = (1..=6).collect();
+        expected.extend(faces - 5..=faces);
+        assert_eq!(first.spiral.pentagon_indices(), expected, "C{n}");
+    }
+    // The lookup runs on rayon's workers, whose stacks are 2 MiB as the test threads'.
+    // Pentagon starts only: hexagon starts multiply each leaf's canonicity test by the
+    // thousands of hexagons without going any deeper.
+    let mut spec = Spec::fullerene(20_000, false).unwrap();
+    spec.all_starts = false;
+    let mut reports = 0;
+    let iso = enumerate::isomer_numbered(&spec, 1, |_, _| reports += 1);
+    let iso = iso.expect("C20000 has a first isomer");
+    assert_eq!(iso.number, Some(1));
+    let mut expected: Vec<u32> = (1..=6).collect();
+    expected.extend(10_002 - 5..=10_002);
+    assert_eq!(iso.spiral.pentagon_indices(), expected);
+    // A progress bar appears before the first unit runs, which may be most of the lookup.
+    assert!(reports >= 1);
+}
