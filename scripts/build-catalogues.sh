@@ -1,5 +1,5 @@
 #!/usr/bin/env bash
-# Rebuilds the shipped catalogue in catalogues/: every isomer from C20 to C70 and every IPR
+# Rebuilds the shipped catalogue in catalogues/: every isomer from C20 to C84 and every IPR
 # isomer from C60 to C100, fully scored. Resumable: if interrupted, run it again.
 # Requires `cagerank enumerate ... --catalogue DIR` (the enumerate command writing catalogues).
 # Existing files of the same runs count as finished whatever format wrote them: after a format
@@ -9,7 +9,7 @@ cd "$(dirname "$0")/.."
 out="${1:-catalogues}"
 cargo build --release --bin cagerank
 bin=target/release/cagerank
-"$bin" enumerate 20..70 --catalogue "$out"
+"$bin" enumerate 20..84 --catalogue "$out"
 "$bin" enumerate 60..100 --ipr --catalogue "$out"
 "$bin" verify "$out"
 "$bin" stats --catalogue "$out" | head -n 40
