@@ -387,6 +387,7 @@ fn job<'a>(coords: &'a [[f64; 3]], charge: i32, method: &'a str) -> deck::Job<'a
         stem: "C60_all-1812",
         title: "C60:all-1812 Ih",
         coords,
+        elements: &[],
         charge,
         multiplicity: deck::multiplicity(60, charge),
         method,
