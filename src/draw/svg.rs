@@ -228,8 +228,13 @@ fn write_site_atoms(w: &mut impl Write, p: &Picture<'_>) -> io::Result<()> {
         return Ok(());
     };
     // Bridge ends get smaller dots than substituted or added-to atoms, so the bond stays the
-    // visible mark.
-    let radius = if marks.bonds.is_empty() { 7.0 } else { 4.5 };
+    // visible mark; with labels every dot is a ring wider than the label's white disc.
+    let radius = match (marks.bonds.is_empty(), p.labels) {
+        (true, false) => 7.0,
+        (true, true) => 8.0,
+        (false, false) => 4.5,
+        (false, true) => 7.0,
+    };
     writeln!(
         w,
         r##"<g id="site-atoms" fill="{SITE_COLOUR}" stroke="#ffffff" stroke-width="1">"##
