@@ -1185,6 +1185,14 @@ fn show_of_substitution_and_bridges_names_parameters_and_bonds() {
     );
     assert!(text.contains("  sites (bonds: atoms)"), "{text}");
     assert!(text.contains("2 6:6, 0 6:5, 0 5:5 bonds"), "{text}");
+    // C60H6 has 418470 patterns (Burnside, checked against listing above): too many to rank
+    // for one `show`, which says so instead of scoring them all.
+    let (code, text, err) = run(&["show", "C60:IPR-1+6H:1"]);
+    assert_eq!(code, 0, "{err}");
+    assert!(
+        text.contains("  rank in its list               not computed: the list has more than 5000"),
+        "{text}"
+    );
 }
 
 /// One exported derivative to check: pattern ID, file stem, formula, atom addend to ignore

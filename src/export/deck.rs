@@ -4,10 +4,10 @@
 //!
 //! Each generator takes the charge and multiplicity as parameters (the export of cages passes
 //! the asked charge and [`multiplicity`], of derivatives the molecule's own); nothing here knows
-//! where they come from. Atoms are carbon unless [`Job::elements`] names them (derivatives). Decks are kept
-//! minimal: only what the code needs to run the job, in the form its manual gives. Choosing the
-//! method is the user's business; the defaults ([`Code::default_method`]) are cheap, common
-//! choices for a first optimisation, not recommendations for production.
+//! where they come from. Atoms are carbon unless [`Job::elements`] names them (derivatives).
+//! Decks are kept minimal: only what the code needs to run the job, in the form its manual
+//! gives. Choosing the method is the user's business; the defaults ([`Code::default_method`])
+//! are cheap, common choices for a first optimisation, not recommendations for production.
 
 use std::fmt::Write as _;
 

@@ -162,6 +162,28 @@ pub fn record(entry: &Entry, d: &DerivativePart) -> Value {
     let m = &d.molecule;
     let g = &entry.geometry;
     let parent = serde_json::to_value(&entry.record).unwrap_or(Value::Null);
+    let elements: Vec<&str> = m.atoms.iter().map(|a| a.element).collect();
+    let coordinates: Vec<[f64; 3]> = m.atoms.iter().map(|a| a.position).collect();
+    // Bonds as [atom, atom, order] and charges as [atom, charge], 0-based atoms.
+    let bonds: Vec<Value> = m
+        .bonds
+        .iter()
+        .map(|(pair, order)| json!([pair[0], pair[1], order]))
+        .collect();
+    let charges: Vec<Value> = m
+        .atoms
+        .iter()
+        .enumerate()
+        .filter(|(_, a)| a.charge != 0)
+        .map(|(i, a)| json!([i, a.charge]))
+        .collect();
+    let radicals: Vec<usize> = m
+        .atoms
+        .iter()
+        .enumerate()
+        .filter(|(_, a)| a.radical)
+        .map(|(i, _)| i)
+        .collect();
     json!({
         "id": d.id,
         "formula": m.formula(),
@@ -179,11 +201,11 @@ pub fn record(entry: &Entry, d: &DerivativePart) -> Value {
         "multiplicity": m.multiplicity(),
         "molecule": {
             "units": "angstrom",
-            "elements": m.atoms.iter().map(|a| a.element).collect::<Vec<_>>(),
-            "coordinates": m.atoms.iter().map(|a| a.position).collect::<Vec<_>>(),
-            "bonds": m.bonds.iter().map(|(pair, order)| json!([pair[0], pair[1], order])).collect::<Vec<_>>(),
-            "charges": m.atoms.iter().enumerate().filter(|(_, a)| a.charge != 0).map(|(i, a)| json!([i, a.charge])).collect::<Vec<_>>(),
-            "radical_centres": m.atoms.iter().enumerate().filter(|(_, a)| a.radical).map(|(i, _)| i).collect::<Vec<_>>(),
+            "elements": elements,
+            "coordinates": coordinates,
+            "bonds": bonds,
+            "charges": charges,
+            "radical_centres": radicals,
         },
         "geometry": {
             "source": "parent cage relaxed by the force field (geometry::relax), addends placed on local normals, not relaxed",
