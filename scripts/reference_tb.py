@@ -1,5 +1,6 @@
 #!/usr/bin/env python3
-"""Independent numpy reference for cagerank's tight-binding energies (src/energy).
+"""Independent numpy reference for cagerank's tight-binding energies (src/energy), and the numpy
+side of the speed comparison.
 
 The orthogonal sp3 tight-binding model for carbon of Xu, Wang, Chan & Ho, J. Phys.: Condens.
 Matter 4 (1992) 6047, written from the published formulas with whole-array numpy operations:
@@ -11,12 +12,26 @@ JSON; the committed tests/data/tb/reference.json was made with
 
     python3 scripts/reference_tb.py > tests/data/tb/reference.json
 
-Timing mode measures one energy + forces evaluation per geometry (best of 20, wall and CPU
-time), for a side-by-side comparison with `cargo bench --bench energy`; run it on one core:
+Timing mode (`--time`) measures, in CPU time of this process, for C60, C70 and C84:23 at the
+committed start geometries:
+  (a) one energy + forces evaluation, best and median of 20, with two numpy implementations:
+      the all-pairs reference above and `evaluate_pairs`, the same model over the neighbour
+      pairs only with the density blocks from the occupied eigenvectors (what a numpy user
+      tuning for speed writes; checked against the reference before it is timed);
+  (b) a full relaxation from the same geometry to a largest per-atom force below 1e-3 eV/A,
+      the way a numpy user would: scipy.optimize.minimize with L-BFGS-B (scipy's defaults,
+      memory 10) and the analytic gradient of `evaluate_pairs`, stopped by a callback on the
+      same force criterion as cagerank (scipy's own ftol and gtol tests switched off so they
+      neither stop it early nor late); best and median of 3, with iterations and evaluations.
+Run it on one core, as `cargo bench --bench energy` runs the Rust side:
 
     OPENBLAS_NUM_THREADS=1 OMP_NUM_THREADS=1 python3 scripts/reference_tb.py --time
 
-Needs numpy only. CI does not run this script.
+`--compare` first runs the matching Rust benchmarks (`cargo bench --bench energy --
+side-by-side`, CPU time, one thread) and then the numpy timings, and prints both with their
+ratios, so both sides are measured in one run under the same machine load.
+
+Needs numpy (and scipy for --time and --compare). CI does not run this script.
 """
 
 import json
@@ -179,18 +194,173 @@ def reference():
     sys.stdout.write("\n")
 
 
+def neighbour_pairs(xyz):
+    """Pairs i < j closer than the cutoff: indices, distances and unit vectors from i to j."""
+    d = xyz[None, :, :] - xyz[:, None, :]
+    r = np.linalg.norm(d, axis=2)
+    i, j = np.nonzero(np.triu(r < CUT, 1))
+    rij = r[i, j]
+    return i, j, rij, d[i, j] / rij[:, None]
+
+
+def evaluate_pairs(xyz, charge):
+    """Total energy (eV) and gradient (eV/A) over the neighbour pairs only; the same formulas as
+    `evaluate`, with the density blocks of the pairs from the occupied eigenvectors."""
+    n = len(xyz)
+    i, j, r, u = neighbour_pairs(xyz)
+    s, ds = radial(r, S_R0, S_N, S_NC, S_RC, S_T, S_TAIL)
+    eye = np.eye(3)
+    g = np.empty((len(r), 4, 4))
+    g[:, 0, 0] = VSS
+    g[:, 0, 1:] = VSP * u
+    g[:, 1:, 0] = -VSP * u
+    g[:, 1:, 1:] = (VPPS - VPPP) * u[:, :, None] * u[:, None, :] + VPPP * eye
+    h = np.zeros((n, 4, n, 4))
+    h[i, :, j, :] = s[:, None, None] * g
+    h[j, :, i, :] = (s[:, None, None] * g).transpose(0, 2, 1)
+    idx = np.arange(n)
+    h[idx, 0, idx, 0] = ES
+    for a in range(1, 4):
+        h[idx, a, idx, a] = EP
+    levels, vectors = np.linalg.eigh(h.reshape(4 * n, 4 * n))
+    f, _ = occupations(levels, 4 * n - charge)
+    occupied = np.count_nonzero(f)
+    band = float(f[:occupied] @ levels[:occupied])
+    w = (vectors[:, :occupied] * np.sqrt(f[:occupied])).reshape(n, 4, occupied)
+    rho = w[i] @ w[j].transpose(0, 2, 1)
+    proj = (eye - u[:, :, None] * u[:, None, :]) / r[:, None, None]
+    dg = np.zeros((len(r), 4, 4, 3))
+    dg[:, 0, 1:, :] = VSP * proj
+    dg[:, 1:, 0, :] = -VSP * proj
+    dg[:, 1:, 1:, :] = (VPPS - VPPP) * (proj[:, :, None, :] * u[:, None, :, None]
+                                        + u[:, :, None, None] * proj[:, None, :, :])
+    dh = ds[:, None, None, None] * g[..., None] * u[:, None, None, :] + s[:, None, None, None] * dg
+    pair = 2.0 * np.einsum("pab,pabc->pc", rho, dh)
+    phi, dphi = radial(r, P_D0, P_M, P_MC, P_DC, P_T, P_TAIL, scale=P_0)
+    x = np.bincount(i, phi, n) + np.bincount(j, phi, n)
+    poly = np.polynomial.polynomial
+    repulsive = float(poly.polyval(x, F_COEF).sum())
+    fprime = poly.polyval(x, poly.polyder(F_COEF))
+    pair += ((fprime[i] + fprime[j]) * dphi)[:, None] * u
+    grad = np.zeros((n, 3))
+    np.add.at(grad, j, pair)
+    np.add.at(grad, i, -pair)
+    return band + repulsive, grad
+
+
+def relax_scipy(xyz, charge, max_force=1e-3):
+    """L-BFGS-B from `xyz` until the largest per-atom force is below `max_force` (eV/A).
+    Returns (energy, largest force, iterations, evaluations)."""
+    from scipy.optimize import minimize
+    last = {}
+
+    def energy_and_gradient(flat):
+        energy, grad = evaluate_pairs(flat.reshape(-1, 3), charge)
+        last.update(x=flat.copy(), grad=grad, energy=energy, count=last.get("count", 0) + 1)
+        return energy, grad.ravel()
+
+    def stop_at_the_force_threshold(intermediate_result):
+        if not np.array_equal(intermediate_result.x, last["x"]):
+            energy_and_gradient(intermediate_result.x)
+        if np.linalg.norm(last["grad"], axis=1).max() < max_force:
+            raise StopIteration
+
+    result = minimize(energy_and_gradient, xyz.ravel(), jac=True, method="L-BFGS-B",
+                      callback=stop_at_the_force_threshold,
+                      options={"maxiter": 100000, "maxfun": 100000, "ftol": 0.0, "gtol": 0.0})
+    force = float(np.linalg.norm(last["grad"], axis=1).max())
+    return last["energy"], force, int(result.nit), last["count"]
+
+
+def cpu_times(job, repeats):
+    times = []
+    for _ in range(repeats):
+        c = time.process_time()
+        job()
+        times.append(time.process_time() - c)
+    return min(times), float(np.median(times))
+
+
+TIMED = ["c60_start.xyz", "c70_start.xyz", "c84_23_start.xyz"]
+
+
 def timing():
-    for name in ["c60_start.xyz", "c70_start.xyz", "c84_23_start.xyz"]:
+    """Numpy CPU times (s) per geometry: evaluations (both implementations) and relaxations."""
+    results = {}
+    for name in TIMED:
         xyz = read_xyz(DATA / name)
-        evaluate(xyz, 0)
-        wall = cpu = float("inf")
-        for _ in range(20):
-            t, c = time.perf_counter(), time.process_time()
-            evaluate(xyz, 0)
-            wall = min(wall, time.perf_counter() - t)
-            cpu = min(cpu, time.process_time() - c)
-        print(f"{name}: energy + forces best of 20: wall {wall * 1e3:.1f} ms, cpu {cpu * 1e3:.1f} ms")
+        out, grad = evaluate(xyz, 0)
+        energy, grad_pairs = evaluate_pairs(xyz, 0)
+        assert abs(energy - out["total_ev"]) < 1e-9 and np.abs(grad - grad_pairs).max() < 1e-9
+        row = {"dense": cpu_times(lambda: evaluate(xyz, 0), 20),
+               "pairs": cpu_times(lambda: evaluate_pairs(xyz, 0), 20)}
+        relaxed = []
+        row["relax"] = cpu_times(lambda: relaxed.append(relax_scipy(xyz, 0)), 3)
+        row["relaxed"] = relaxed[-1]
+        results[name] = row
+    return results
+
+
+def print_numpy(results):
+    print("numpy CPU time, one thread (min / median):")
+    for name, row in results.items():
+        energy, force, nit, nfev = row["relaxed"]
+        print(f"  {name}: evaluation all-pairs {row['dense'][0] * 1e3:.1f} / "
+              f"{row['dense'][1] * 1e3:.1f} ms, pair-list {row['pairs'][0] * 1e3:.1f} / "
+              f"{row['pairs'][1] * 1e3:.1f} ms; relaxation {row['relax'][0]:.3f} / "
+              f"{row['relax'][1]:.3f} s ({nit} iterations, {nfev} evaluations, "
+              f"E = {energy:.6f} eV, max force {force:.1e} eV/A)")
+
+
+def rust_side():
+    """Runs the Rust benchmarks and returns their median CPU times (s) and relaxation counts."""
+    import os
+    import re
+    import subprocess
+    root = DATA.parent.parent.parent
+    run = subprocess.run(["cargo", "bench", "--bench", "energy", "--", "side-by-side"],
+                         cwd=root, capture_output=True, text=True, check=True)
+    counts = {}
+    for m in re.finditer(r"relax (\S+): (\d+) iterations, (\d+) evaluations, E = (\S+) eV",
+                         run.stdout):
+        counts[m.group(1)] = (int(m.group(2)), int(m.group(3)), float(m.group(4)))
+    target = pathlib.Path(os.environ.get("CARGO_TARGET_DIR", root / "target"))
+    medians = {}
+    for kind in ["evaluation", "relaxation"]:
+        for name in TIMED:
+            bench = f"{kind} {name}"
+            path = target / "criterion" / "side-by-side" / bench / "new" / "estimates.json"
+            medians[(kind, name)] = json.loads(path.read_text())["median"]["point_estimate"] * 1e-9
+    return medians, counts
+
+
+def compare():
+    import os
+    load = [os.getloadavg()[0]]
+    rust, counts = rust_side()
+    load.append(os.getloadavg()[0])
+    numpy = timing()
+    load.append(os.getloadavg()[0])
+    print(f"1-min load average: {load[0]:.2f} before Rust, {load[1]:.2f} between, "
+          f"{load[2]:.2f} after numpy (2 cores)")
+    print_numpy(numpy)
+    print("Rust CPU time, one thread (criterion median), and numpy median / Rust median:")
+    for name in TIMED:
+        row = numpy[name]
+        evaluation, relaxation = rust[("evaluation", name)], rust[("relaxation", name)]
+        nit, nfev, energy = counts[name]
+        _, _, np_nit, np_nfev = row["relaxed"]
+        print(f"  {name}: evaluation {evaluation * 1e3:.2f} ms: x{row['pairs'][1] / evaluation:.2f} "
+              f"against pair-list numpy (x{row['dense'][1] / evaluation:.2f} all-pairs); "
+              f"relaxation {relaxation:.3f} s ({nit} iterations, {nfev} evaluations, "
+              f"E = {energy:.6f} eV): x{row['relax'][1] / relaxation:.2f} "
+              f"(numpy {np_nit} iterations, {np_nfev} evaluations)")
 
 
 if __name__ == "__main__":
-    timing() if "--time" in sys.argv else reference()
+    if "--compare" in sys.argv:
+        compare()
+    elif "--time" in sys.argv:
+        print_numpy(timing())
+    else:
+        reference()

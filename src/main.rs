@@ -30,11 +30,20 @@ fn parse_failure(e: clap::Error) -> ! {
     }
     let rendered = e.render().to_string();
     let mut lines = rendered.lines().map(str::trim).filter(|l| !l.is_empty());
-    let what = lines
+    let mut what = lines
         .next()
         .unwrap_or("bad arguments")
         .trim_start_matches("error:")
-        .trim();
+        .trim()
+        .to_string();
+    // "the following required arguments were not provided:" lists them on the next lines.
+    if what.ends_with(':') {
+        let listed: Vec<&str> = lines
+            .clone()
+            .take_while(|l| !l.starts_with("Usage:") && !l.starts_with("tip:"))
+            .collect();
+        what = format!("{what} {}", listed.join(", "));
+    }
     let tip = lines
         .find_map(|l| l.strip_prefix("tip:"))
         .map(|t| format!("; {}", t.trim()))

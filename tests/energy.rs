@@ -681,6 +681,154 @@ fn energies_and_forces_agree_with_the_numpy_reference() {
 }
 
 // ---------------------------------------------------------------------------------------------
+// 8. The eigensolver (all levels, vectors of the lowest only) against nalgebra.
+// ---------------------------------------------------------------------------------------------
+
+/// Checks `Eigensolver` on the symmetric `a` against nalgebra's symmetric eigendecomposition:
+/// levels, residuals and orthonormality of the lowest `count` vectors, and their projector, by
+/// inverse iteration and by the divide-and-conquer fallback. Backward-stable solvers give
+/// eigenvalues and residuals within a small multiple of nε‖A‖, and a projector onto levels
+/// separated by a gap g within ~ε‖A‖/g (Golub & Van Loan, Matrix Computations, 4th ed. 2013,
+/// §8.1-8.2, from memory); the tolerances below leave a factor of about 100 (common practice,
+/// no source).
+fn check_eigensolver(a: &DMatrix<f64>, count: usize, label: &str) {
+    use cagerank::energy::spectrum::Eigensolver;
+    let n = a.nrows();
+    let norm = (0..n)
+        .map(|i| (0..n).map(|j| a[(i, j)].abs()).sum::<f64>())
+        .fold(0.0, f64::max);
+    let reference = a.clone().symmetric_eigen();
+    let mut order: Vec<usize> = (0..n).collect();
+    order.sort_by(|&x, &y| reference.eigenvalues[x].total_cmp(&reference.eigenvalues[y]));
+    let gap = reference.eigenvalues[order[count]] - reference.eigenvalues[order[count - 1]];
+    assert!(gap > 1e-3 * norm, "{label}: choose a count at a gap");
+    let mut solver = Eigensolver::new(n);
+    for fallback in [false, true] {
+        let mut work = faer::Mat::<f64>::from_fn(n, n, |i, j| a[(i, j)]);
+        let mut levels = vec![0.0; n];
+        solver.levels(work.as_mut(), &mut levels).unwrap();
+        for (k, &o) in order.iter().enumerate() {
+            let want = reference.eigenvalues[o];
+            assert!(
+                (levels[k] - want).abs() < 1e-13 * n as f64 * norm,
+                "{label}: level {k} {} vs {want}",
+                levels[k]
+            );
+        }
+        let mut vectors = faer::Mat::<f64>::zeros(n, n);
+        if fallback {
+            solver
+                .lowest_vectors_by_divide_and_conquer(work.as_mut(), count, vectors.as_mut())
+                .unwrap();
+        } else {
+            solver
+                .lowest_vectors(work.as_mut(), count, vectors.as_mut())
+                .unwrap();
+        }
+        let v = DMatrix::<f64>::from_fn(n, count, |i, k| vectors[(i, k)]);
+        let residual = a * &v - &v * DMatrix::from_diagonal(&levels[..count].to_vec().into());
+        assert!(
+            residual.amax() < 1e-13 * n as f64 * norm,
+            "{label} (fallback {fallback}): residual {}",
+            residual.amax()
+        );
+        let overlap = v.transpose() * &v - DMatrix::<f64>::identity(count, count);
+        assert!(
+            overlap.amax() < 1e-10,
+            "{label} (fallback {fallback}): orthonormality {}",
+            overlap.amax()
+        );
+        let lowest =
+            DMatrix::<f64>::from_fn(n, count, |i, k| reference.eigenvectors[(i, order[k])]);
+        let projector = &v * v.transpose() - &lowest * lowest.transpose();
+        assert!(
+            projector.amax() < 1e-13 * n as f64 * norm / gap,
+            "{label} (fallback {fallback}): projector {}",
+            projector.amax()
+        );
+    }
+}
+
+fn random_symmetric(n: usize, seed: u64) -> DMatrix<f64> {
+    use rand::{Rng, SeedableRng};
+    let mut rng = rand::rngs::StdRng::seed_from_u64(seed);
+    let m = DMatrix::<f64>::from_fn(n, n, |_, _| rng.gen_range(-1.0..1.0));
+    (&m + m.transpose()) * 0.5
+}
+
+/// A count at the widest gap among the levels from a third to two thirds of the spectrum.
+fn count_at_a_gap(a: &DMatrix<f64>) -> usize {
+    let mut levels: Vec<f64> = a.clone().symmetric_eigenvalues().iter().copied().collect();
+    levels.sort_by(f64::total_cmp);
+    let n = levels.len();
+    (n / 3..2 * n / 3)
+        .max_by(|&x, &y| (levels[x] - levels[x - 1]).total_cmp(&(levels[y] - levels[y - 1])))
+        .unwrap()
+}
+
+#[test]
+fn eigensolver_agrees_with_nalgebra_on_random_matrices() {
+    for (n, seed) in [(2, 1), (3, 2), (40, 3), (150, 4)] {
+        let a = random_symmetric(n, seed);
+        let count = if n < 4 { 1 } else { count_at_a_gap(&a) };
+        check_eigensolver(&a, count, &format!("random {n}"));
+    }
+}
+
+// A ⊕ A has every level twice; with the rows shuffled the tridiagonal form splits only to
+// rounding, unshuffled it splits exactly. A diagonal matrix splits into 1x1 blocks.
+#[test]
+fn eigensolver_agrees_with_nalgebra_on_degenerate_and_split_matrices() {
+    let block = random_symmetric(30, 5);
+    let mut doubled = DMatrix::<f64>::zeros(60, 60);
+    doubled.view_mut((0, 0), (30, 30)).copy_from(&block);
+    doubled.view_mut((30, 30), (30, 30)).copy_from(&block);
+    let count = 2 * count_at_a_gap(&block);
+    check_eigensolver(&doubled, count, "A+A");
+    let perm = common::random_perm(60, 7);
+    let shuffled =
+        DMatrix::<f64>::from_fn(60, 60, |i, j| doubled[(perm[i] as usize, perm[j] as usize)]);
+    check_eigensolver(&shuffled, count, "A+A shuffled");
+    let diagonal = DMatrix::<f64>::from_fn(12, 12, |i, j| {
+        if i == j {
+            [3.0, -1.0, 2.0, -1.0, 0.0, 5.0][i % 6]
+        } else {
+            0.0
+        }
+    });
+    check_eigensolver(&diagonal, 6, "diagonal");
+}
+
+// The Hamiltonian of C60 at its Ih force-field geometry, built here with this file's own
+// Slater-Koster blocks: 3-, 4- and 5-fold degenerate levels; 120 levels below the HOMO-LUMO gap.
+#[test]
+fn eigensolver_agrees_with_nalgebra_on_the_c60_hamiltonian() {
+    let x = c60_start();
+    let n = 4 * x.len();
+    let mut h = DMatrix::<f64>::zeros(n, n);
+    for (i, a) in x.iter().enumerate() {
+        h[(4 * i, 4 * i)] = E_S;
+        for p in 1..4 {
+            h[(4 * i + p, 4 * i + p)] = E_P;
+        }
+        for (j, b) in x.iter().enumerate() {
+            let r = distance(*a, *b);
+            if i == j || r >= CUTOFF {
+                continue;
+            }
+            let u: [f64; 3] = std::array::from_fn(|k| (b[k] - a[k]) / r);
+            let block = slater_koster(u, hopping_scale(r).0);
+            for (mu, row) in block.iter().enumerate() {
+                for (nu, &v) in row.iter().enumerate() {
+                    h[(4 * i + mu, 4 * j + nu)] = v;
+                }
+            }
+        }
+    }
+    check_eigensolver(&h, 120, "C60");
+}
+
+// ---------------------------------------------------------------------------------------------
 // Large cages.
 // ---------------------------------------------------------------------------------------------
 

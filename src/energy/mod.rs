@@ -47,6 +47,7 @@ pub mod model;
 pub mod occupation;
 pub mod params;
 pub mod relax;
+pub mod spectrum;
 
 pub use model::Evaluator;
 pub use relax::{keeps_graph, relax, relax_from, BOND_MAX};
@@ -200,6 +201,9 @@ pub struct Relaxed {
     pub max_force: f64,
     /// L-BFGS iterations, summed over both runs when a perturbed run was made.
     pub iterations: usize,
+    /// Energy and force evaluations (line-search trials and any final re-evaluation included),
+    /// summed over both runs: what the relaxation cost.
+    pub evaluations: usize,
     /// The largest force fell below `Settings::max_force`.
     pub converged: bool,
     /// The relaxed bonds are exactly the cage's edges (see [`keeps_graph`]).

@@ -5,17 +5,18 @@
 //! Slater & Koster, Phys. Rev. 94 (1954) 1498, scaled by s(r) from `params.rs`. The band energy is
 //! Σ f_k ε_k with the occupations of `occupation.rs`; the repulsion is Σ_i f(Σ_j φ(r_ij)). Forces
 //! are Hellmann-Feynman: dE_band/dR = Σ_ij ρ_ij dH_ij/dR with ρ = Σ_k f_k c_k c_kᵀ, and only the
-//! 4×4 blocks of ρ for neighbour pairs are formed. Relaxation is left to `relax.rs`.
+//! 4×4 blocks of ρ for neighbour pairs are formed. Every level comes from `spectrum.rs`, but
+//! eigenvectors only for the levels that hold electrons (the occupations decide how many, and a
+//! partly filled group is always taken whole), about half the work of a full eigensolver's
+//! vectors. Relaxation is left to `relax.rs`.
 
 use super::occupation::fill;
 use super::params::{
     embedding, hopping_scale, pair_term, CUTOFF, E_P, E_S, V_PP_PI, V_PP_SIGMA, V_SP_SIGMA,
     V_SS_SIGMA,
 };
+use super::spectrum::Eigensolver;
 use super::{electron_count, EnergyError, EnergyParts, Frontier};
-use faer::diag::Diag;
-use faer::dyn_stack::{MemBuffer, MemStack, StackReq};
-use faer::linalg::evd::{self, ComputeEigenvectors};
 use faer::{Mat, Par};
 
 /// Orbitals per atom.
@@ -40,11 +41,11 @@ struct Pair {
 pub struct Evaluator {
     atoms: usize,
     electrons: usize,
-    par: Par,
+    /// H's lower triangle; the eigensolver overwrites it with its Householder vectors.
     hamiltonian: Mat<f64>,
-    levels: Diag<f64>,
+    solver: Eigensolver,
+    /// Eigenvectors of the occupied levels, in the first columns.
     vectors: Mat<f64>,
-    scratch: MemBuffer,
     level_list: Vec<f64>,
     occupations: Vec<f64>,
     /// √f_k c_k laid out [atom][k][orbital], for the occupied k only.
@@ -75,11 +76,9 @@ impl Evaluator {
         Ok(Evaluator {
             atoms,
             electrons,
-            par: Par::Seq,
             hamiltonian: Mat::zeros(dim, dim),
-            levels: Diag::zeros(dim),
+            solver: Eigensolver::new(dim),
             vectors: Mat::zeros(dim, dim),
-            scratch: MemBuffer::new(scratch_for(dim, Par::Seq)),
             level_list: vec![0.0; dim],
             occupations: vec![0.0; dim],
             weighted: vec![0.0; dim * dim],
@@ -100,19 +99,16 @@ impl Evaluator {
         self.electrons
     }
 
-    /// Run the eigensolver on `threads` threads (0 = all, 1 = sequential, the default). Only
-    /// worth it for cages of several hundred atoms; results with more than one thread may differ
+    /// Run the eigensolver's dense steps (tridiagonalisation and back-transformation) on
+    /// `threads` threads (0 = all, 1 = sequential, the default). Only worth it for cages of
+    /// several hundred atoms; results with more than one thread may differ
     /// in the last bits from sequential ones, so outputs meant to be byte-identical stay at 1.
     pub fn set_threads(&mut self, threads: usize) {
-        self.par = if threads == 1 {
+        self.solver.set_par(if threads == 1 {
             Par::Seq
         } else {
             Par::rayon(threads)
-        };
-        let needed = scratch_for(ORBITALS * self.atoms, self.par);
-        if !MemStack::new(&mut self.scratch).can_hold(needed) {
-            self.scratch = MemBuffer::new(needed);
-        }
+        });
     }
 
     /// Band and repulsive energy of the last evaluation.
@@ -132,11 +128,18 @@ impl Evaluator {
         assert_eq!(coords.len(), 3 * self.atoms, "one xyz triple per atom");
         assert_eq!(grad.len(), coords.len(), "gradient matches coordinates");
         let repulsive = self.neighbours_and_repulsion(coords);
-        if !self.diagonalise(ComputeEigenvectors::Yes) {
+        let solved = self
+            .diagonalise()
+            .then(|| self.occupy())
+            .filter(|&occupied| {
+                self.solver
+                    .lowest_vectors(self.hamiltonian.as_mut(), occupied, self.vectors.as_mut())
+                    .is_ok()
+            });
+        let Some(occupied) = solved else {
             grad.iter_mut().for_each(|g| *g = f64::NAN);
             return self.undefined();
-        }
-        let occupied = self.occupy();
+        };
         self.weigh_occupied(occupied);
         grad.iter_mut().for_each(|g| *g = 0.0);
         self.add_forces(occupied, grad);
@@ -148,7 +151,7 @@ impl Evaluator {
     pub fn energy(&mut self, coords: &[f64]) -> f64 {
         assert_eq!(coords.len(), 3 * self.atoms, "one xyz triple per atom");
         let repulsive = self.neighbours_and_repulsion(coords);
-        if !self.diagonalise(ComputeEigenvectors::No) {
+        if !self.diagonalise() {
             return self.undefined();
         }
         self.occupy();
@@ -212,9 +215,10 @@ impl Evaluator {
         repulsive
     }
 
-    /// Fills the lower triangle of H and diagonalises it; false if H is not finite (non-finite
-    /// or coinciding atoms) or the solver fails.
-    fn diagonalise(&mut self, want: ComputeEigenvectors) -> bool {
+    /// Fills the lower triangle of H and computes all its levels into `level_list`; false if H
+    /// is not finite (non-finite or coinciding atoms) or the solver fails. The eigenvectors are
+    /// left for [`Eigensolver::lowest_vectors`], once the occupations say how many are needed.
+    fn diagonalise(&mut self) -> bool {
         let h = &mut self.hamiltonian;
         h.fill(0.0);
         for a in 0..self.atoms {
@@ -234,26 +238,9 @@ impl Evaluator {
                 }
             }
         }
-        if !self
-            .pairs
-            .iter()
-            .all(|p| p.s.is_finite() && p.u.iter().all(|v| v.is_finite()))
-        {
-            return false;
-        }
-        let vectors = (want == ComputeEigenvectors::Yes).then(|| self.vectors.as_mut());
-        let solved = evd::self_adjoint_evd(
-            self.hamiltonian.as_ref(),
-            self.levels.as_mut(),
-            vectors,
-            self.par,
-            MemStack::new(&mut self.scratch),
-            Default::default(),
-        );
-        for (k, v) in self.level_list.iter_mut().enumerate() {
-            *v = self.levels[k];
-        }
-        solved.is_ok()
+        self.solver
+            .levels(self.hamiltonian.as_mut(), &mut self.level_list)
+            .is_ok()
     }
 
     /// Occupations, band energy and frontier; returns how many levels hold electrons.
@@ -298,14 +285,6 @@ impl Evaluator {
             }
         }
     }
-}
-
-/// Workspace of faer's symmetric eigensolver for a `dim`-square matrix, with or without vectors.
-fn scratch_for(dim: usize, par: Par) -> StackReq {
-    let want = [ComputeEigenvectors::Yes, ComputeEigenvectors::No];
-    want.into_iter()
-        .map(|w| evd::self_adjoint_evd_scratch::<f64>(dim, w, par, Default::default()))
-        .fold(StackReq::EMPTY, StackReq::or)
 }
 
 /// <iμ|H|jν> for the unit vector u from i to j (Slater & Koster 1954, sp3 block), μ, ν = s, x,

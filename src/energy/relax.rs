@@ -68,11 +68,13 @@ pub fn relax_from(
         perturb(&mut shifted);
         let mut second = run(&mut evaluator, &mut precondition, shifted, settings);
         second.iterations += best.iterations;
+        second.evaluations += best.evaluations;
         second.perturbed = true;
         if second.energy_ev < best.energy_ev {
             best = second;
         } else {
             best.iterations = second.iterations;
+            best.evaluations = second.evaluations;
             best.perturbed = true;
         }
     }
@@ -100,11 +102,13 @@ fn run(
     );
     // A converged run's last evaluation was at the final point; otherwise it may have been a
     // rejected trial step, so the final point is evaluated again.
+    let mut evaluations = outcome.evaluations;
     let (energy, max_force) = if outcome.converged {
         (outcome.value, outcome.max_force)
     } else {
         let mut grad = vec![0.0; x.len()];
         let energy = evaluator.energy_gradient(&x, &mut grad);
+        evaluations += 1;
         (energy, max_atom_norm(&grad))
     };
     let parts = evaluator.parts();
@@ -116,6 +120,7 @@ fn run(
         frontier: evaluator.frontier(),
         max_force,
         iterations: outcome.iterations,
+        evaluations,
         converged: max_force < settings.max_force,
         graph_kept: false,
         perturbed: false,

@@ -34,6 +34,8 @@ pub struct Outcome {
     pub value: f64,
     pub max_force: f64,
     pub iterations: usize,
+    /// Calls of the function, line-search trials included: the cost of the run.
+    pub evaluations: usize,
     pub converged: bool,
 }
 
@@ -197,6 +199,7 @@ fn minimise(
 ) -> Outcome {
     let n = x.len();
     let mut g = vec![0.0; n];
+    let mut evaluations = 1;
     let mut value = f(x, &mut g);
     let mut history = History::new(n, settings.memory);
     let mut dir = vec![0.0; n];
@@ -209,6 +212,7 @@ fn minimise(
                 value,
                 max_force: force,
                 iterations: iteration,
+                evaluations,
                 converged: true,
             };
         }
@@ -232,6 +236,7 @@ fn minimise(
                 trial[i] = x[i] + step * dir[i];
             }
             let v = f(&trial, &mut g_trial);
+            evaluations += 1;
             if v <= value + 1e-4 * step * slope {
                 break Some(v);
             }
@@ -245,6 +250,7 @@ fn minimise(
                 value,
                 max_force: force,
                 iterations: iteration,
+                evaluations,
                 converged: false,
             };
         };
@@ -258,6 +264,7 @@ fn minimise(
         value,
         max_force: force,
         iterations: settings.max_iterations,
+        evaluations,
         converged: force < settings.max_force,
     }
 }
