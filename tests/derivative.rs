@@ -1185,6 +1185,18 @@ fn show_of_substitution_and_bridges_names_parameters_and_bonds() {
     );
     assert!(text.contains("  sites (bonds: atoms)"), "{text}");
     assert!(text.contains("2 6:6, 0 6:5, 0 5:5 bonds"), "{text}");
+    // Every kind shows: formula counted by hand (C60 plus K addends, C60 plus K CH2 with 2K H,
+    // 60 - K carbons and K heteroatoms) and the sites the pattern's list gives.
+    for (id, _, formula) in EXPORTS {
+        let (code, out, err) = run(&["show", id, "--json"]);
+        assert_eq!(code, 0, "{id}: {err}");
+        let v: serde_json::Value = serde_json::from_str(out.trim()).expect("JSON");
+        assert_eq!(v["id"], id);
+        assert_eq!(v["formula"], formula, "{id}");
+        let (_, found) = find_pattern(&p, &PatternId::parse(id).unwrap()).unwrap();
+        let sites: Vec<u64> = found.sites.iter().map(|&s| u64::from(s) + 1).collect();
+        assert_eq!(v["sites"], serde_json::json!(sites), "{id}");
+    }
     // C60H6 has 418470 patterns (Burnside, checked against listing above): too many to rank
     // for one `show`, which says so instead of scoring them all.
     let (code, text, err) = run(&["show", "C60:IPR-1+6H:1"]);
@@ -1360,6 +1372,25 @@ fn export_of_patterns_writes_valid_molecules_that_identify_as_the_parent() {
     std::fs::remove_dir_all(&dir).unwrap();
 }
 
+/// The fields of one CSV line (RFC 4180 quoting: the spiral column holds commas).
+fn csv_fields(line: &str) -> Vec<String> {
+    let mut fields = vec![String::new()];
+    let mut quoted = false;
+    let mut chars = line.chars().peekable();
+    while let Some(c) = chars.next() {
+        match c {
+            '"' if quoted && chars.peek() == Some(&'"') => {
+                chars.next();
+                fields.last_mut().unwrap().push('"');
+            }
+            '"' => quoted = !quoted,
+            ',' if !quoted => fields.push(String::new()),
+            _ => fields.last_mut().unwrap().push(c),
+        }
+    }
+    fields
+}
+
 #[test]
 fn export_of_a_charged_pattern_and_the_same_bytes_on_one_and_two_threads() {
     // C59N+ (azafullerenium): closed shell, 59 x 6 + 7 - 1 = 360 electrons, a singlet; the
@@ -1403,6 +1434,13 @@ fn export_of_a_charged_pattern_and_the_same_bytes_on_one_and_two_threads() {
     assert_eq!(r.elements[r.charges[0].0 as usize], "C");
     let gjf = std::fs::read_to_string(one.join("C60_IPR-1+1N-1.gjf")).unwrap();
     assert!(gjf.lines().any(|l| l == "1 1"), "{gjf}");
+    // The manifest calls it closed-shell although its 59 carbons have no Kekulé structure.
+    let manifest = std::fs::read_to_string(one.join("manifest.csv")).unwrap();
+    let header = csv_fields(manifest.lines().next().unwrap());
+    let row = csv_fields(manifest.lines().nth(1).unwrap());
+    let column = |name: &str| row[header.iter().position(|h| h == name).unwrap()].clone();
+    assert_eq!(column("id"), "C60:IPR-1+1N:1");
+    assert_eq!(column("shell"), "closed", "{manifest}");
     std::fs::remove_dir_all(&one).unwrap();
     std::fs::remove_dir_all(&two).unwrap();
 }
@@ -1412,8 +1450,10 @@ fn draw_of_patterns_marks_their_sites_with_a_legend() {
     let dir = temp_dir("draw");
     for (id, legend, bonds) in [
         ("C60:IPR-1+2H:5", "2 H addends", false),
+        ("C60:IPR-1+4F:217", "4 F addends", false),
         ("C60:IPR-1+2Cl:3", "2 Cl addends", false),
         ("C60:IPR-1+2CH2@66:8", "2 CH2 bridges", true),
+        ("C60:IPR-1+2N:5", "2 N in place of C", false),
         ("C60:IPR-1+2B:7", "2 B in place of C", false),
         ("C60:IPR-1+1H:1", "1 H addend", false),
     ] {

@@ -6,8 +6,7 @@
 //! the whole size here. Explicit IDs may be pattern IDs of derivatives (`C60:IPR-1+2H:5`),
 //! written with their addend or hetero atoms. Every file is named by an ID that says its list
 //! (`C84_IPR-23.xyz`, `C60_IPR-1+2H-5.sdf`), and no file is replaced unless `--overwrite` says
-//! so. The science (numbers, scores, geometry,
-//! file formats) lives in the library.
+//! so. The science (numbers, scores, geometry, file formats) lives in the library.
 
 use super::CliError;
 use cagerank::cage::FaceSet;
@@ -352,11 +351,19 @@ fn by_ids(ids: &str, args: &Args) -> Result<Vec<Item>, CliError> {
             Item::Cage(p) if p.1 == spiral => Some(p.0),
             _ => None,
         });
-        if let Some(first) = first {
-            eprintln!(
-                "cagerank: note: {id} is the same isomer as {first}; exported once, as {first}"
-            );
-            continue;
+        // The text differed (`C70:ipr-1` after `C70:IPR-1`), the ID or the isomer may not.
+        match first {
+            Some(first) if first == id => {
+                eprintln!("cagerank: note: {id} is listed more than once; exported once");
+                continue;
+            }
+            Some(first) => {
+                eprintln!(
+                    "cagerank: note: {id} is the same isomer as {first}; exported once, as {first}"
+                );
+                continue;
+            }
+            None => {}
         }
         out.push(Item::Cage((id, spiral, numbers)));
     }

@@ -4,8 +4,9 @@
 //!
 //! Layout (where atoms go) comes from `schlegel.rs`; the values used for colouring come from
 //! `score::bonds`. A derivative's marked bonds are wide `<path class="site-bond">` strokes under
-//! the bonds, its marked atoms `<circle class="site">` dots over them (under any labels). Every face is one `<path class="face">`; the outer face, which in a Schlegel
-//! diagram is the region around the drawing, is a ring between a frame and the boundary polygon.
+//! the bonds, its marked atoms `<circle class="site">` dots over them (under any labels). Every
+//! face is one `<path class="face">`; the outer face, which in a Schlegel diagram is the region
+//! around the drawing, is a ring between a frame and the boundary polygon.
 
 use std::fmt::Write as _;
 use std::io::{self, Write};

@@ -78,7 +78,8 @@ pub fn prepare(parent_id: IsomerId, numbers: Numbers, named: &Named) -> Result<E
 /// change its rings; its force-field geometry is the one written); `homo`, `lumo`, `gap`,
 /// `kekule`, `chiral` are the derivative's (remaining pi system, heteroatom parameters);
 /// `pi_energy` is the total pi energy per remaining pi centre (the cage value is per atom, all
-/// atoms being pi centres there); `shell` is `closed` or `radical` (no Kekulé structure);
+/// atoms being pi centres there); `shell` is `closed`, or `radical` when the built molecule
+/// has unpaired centres;
 /// `automorphisms` is the order of the pattern's stabiliser; `nmr` is left empty (not computed
 /// for derivatives); the tight-binding columns are empty.
 pub fn scalar_fields(entry: &Entry, d: &DerivativePart) -> Vec<(String, String)> {
@@ -90,7 +91,9 @@ pub fn scalar_fields(entry: &Entry, d: &DerivativePart) -> Vec<(String, String)>
         .iter()
         .map(u32::to_string)
         .collect();
-    let shell = if s.kekule_structure {
+    // From the built molecule, not the Kekulé flag: C59N+ has no Kekulé structure of its
+    // carbons, yet its charge sits on a carbon and no electron is left unpaired.
+    let shell = if d.molecule.radical_centres() == 0 {
         "closed"
     } else {
         "radical"
