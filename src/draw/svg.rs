@@ -296,8 +296,12 @@ fn write_captions(w: &mut impl Write, p: &Picture<'_>) -> io::Result<()> {
             range(v),
         )?,
     }
+    // Beside the ring swatches; under a colour scale, right of its end value.
     if let Some(marks) = p.marks {
-        legend_sites(w, 220.0, y0 + 40.0, marks)?;
+        match p.colours {
+            Colours::Faces => legend_sites(w, 330.0, y0 + 22.0, marks)?,
+            _ => legend_sites(w, 220.0, y0 + 40.0, marks)?,
+        }
     }
     writeln!(w, "</g>")
 }
