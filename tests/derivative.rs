@@ -1539,3 +1539,89 @@ fn pattern_ids_that_cannot_be_shown_exported_or_drawn_get_one_line_and_exit_2() 
     assert!(!dir.join("manifest.csv").exists());
     std::fs::remove_dir_all(&dir).unwrap();
 }
+
+#[test]
+fn show_and_export_of_radical_patterns_flag_them_and_rank_them_last() {
+    // C20H4: 58 patterns, 5 of them without a Kekulé structure (scripts/check_derivatives.out,
+    // existence checked there with networkx's maximum matching). Those are radicals; the default
+    // order puts them after the 53 others.
+    let (code, listing, err) = run(&[
+        "derive",
+        "C20:all-1",
+        "--add",
+        "4",
+        "--sort",
+        "id",
+        "--format",
+        "json",
+    ]);
+    assert_eq!(code, 0, "{err}");
+    let rows: Vec<serde_json::Value> = listing
+        .lines()
+        .map(|l| serde_json::from_str(l).unwrap())
+        .collect();
+    assert_eq!(rows.len(), 58);
+    let radicals: Vec<String> = rows
+        .iter()
+        .filter(|r| r["radical"] == true)
+        .map(|r| r["id"].as_str().unwrap().to_string())
+        .collect();
+    assert_eq!(radicals.len(), 5);
+    for id in &radicals {
+        let (code, out, err) = run(&["show", id, "--json"]);
+        assert_eq!(code, 0, "{id}: {err}");
+        let v: serde_json::Value = serde_json::from_str(out.trim()).unwrap();
+        assert_eq!(v["radical"], true, "{id}");
+        assert_eq!(v["kekule"], "0", "{id}");
+        assert_eq!(v["rank_of"], 58);
+        assert!(v["rank"].as_u64().unwrap() > 53, "{id}: {v}");
+    }
+    let (code, text, err) = run(&["show", &radicals[0]]);
+    assert_eq!(code, 0, "{err}");
+    assert!(
+        text.contains("  radical                        yes: no Kekulé structure"),
+        "{text}"
+    );
+    // Exported, its unpaired centres are `M  RAD` doublets (value 2) on carbons, and every
+    // carbon's bond orders plus its unpaired electron make four.
+    let dir = temp_dir("radical");
+    let (code, _, err) = run(&[
+        "export",
+        "--ids",
+        &radicals[0],
+        "--format",
+        "sdf",
+        "--out",
+        dir.to_str().unwrap(),
+    ]);
+    assert_eq!(code, 0, "{err}");
+    let stem = PatternId::parse(&radicals[0]).unwrap().file_stem();
+    let text = std::fs::read_to_string(dir.join(format!("{stem}.sdf"))).unwrap();
+    let r = &cagerank::export::sdf::parse(&text).unwrap()[0];
+    let mut unpaired = vec![0i32; r.elements.len()];
+    for line in text.lines().filter(|l| l.starts_with("M  RAD")) {
+        let numbers: Vec<usize> = line[6..]
+            .split_whitespace()
+            .map(|t| t.parse().unwrap())
+            .collect();
+        for pair in numbers[1..].chunks(2) {
+            assert_eq!(pair[1], 2, "doublet: {line}");
+            unpaired[pair[0] - 1] = 1;
+        }
+    }
+    assert!(unpaired.iter().sum::<i32>() >= 2, "{text}");
+    let mut orders = vec![0i32; r.elements.len()];
+    for &(a, b, o) in &r.bonds {
+        orders[a as usize] += i32::from(o);
+        orders[b as usize] += i32::from(o);
+    }
+    for (i, e) in r.elements.iter().enumerate() {
+        assert_eq!(orders[i] + unpaired[i], valence(e), "atom {i} {e}");
+    }
+    let manifest = std::fs::read_to_string(dir.join("manifest.csv")).unwrap();
+    let header = csv_fields(manifest.lines().next().unwrap());
+    let row = csv_fields(manifest.lines().nth(1).unwrap());
+    let shell = header.iter().position(|h| h == "shell").unwrap();
+    assert_eq!(row[shell], "radical");
+    std::fs::remove_dir_all(&dir).unwrap();
+}
