@@ -1625,3 +1625,40 @@ fn show_and_export_of_radical_patterns_flag_them_and_rank_them_last() {
     assert_eq!(row[shell], "radical");
     std::fs::remove_dir_all(&dir).unwrap();
 }
+
+#[test]
+fn nth_pattern_walks_alone_to_the_same_pattern_as_the_parallel_listing() {
+    // `find_pattern` looks a pattern up by a sequential walk that stops at it; the listing runs
+    // in parallel windows. Both must number the patterns the same way, with the same stabiliser.
+    let p = c60();
+    for (kind, k) in [
+        (Kind::Addend(Addend::H), 3),
+        (Kind::Bridge(BondFilter::Any), 2),
+        (Kind::Bridge(BondFilter::HexHex), 3),
+    ] {
+        let s = search(&p, kind, k);
+        let all = listed(&s);
+        for (i, (sites, stabiliser)) in all.iter().enumerate() {
+            let f = s.nth(i as u64 + 1).expect("within the list");
+            assert_eq!(
+                (&f.sites, &f.stabiliser),
+                (sites, stabiliser),
+                "{kind:?} {i}"
+            );
+        }
+        assert_eq!(s.nth(all.len() as u64 + 1), Err(all.len() as u64));
+    }
+}
+
+#[test]
+fn first_pattern_of_a_long_list_is_shown_without_listing_it() {
+    // The first pattern of K addends is atoms 1..K: the smallest K-set of all is its own
+    // smallest image, so it is canonical and comes first (docs/derivatives.md, canonical form).
+    // C60H8 has 21330558 patterns (`derive --count-only`); showing number 1 must not list them
+    // (it took minutes when the lookup went through the parallel listing).
+    let (code, out, err) = run(&["show", "C60:IPR-1+8H:1", "--json"]);
+    assert_eq!(code, 0, "{err}");
+    let v: serde_json::Value = serde_json::from_str(out.trim()).unwrap();
+    assert_eq!(v["sites"], serde_json::json!([1, 2, 3, 4, 5, 6, 7, 8]));
+    assert_eq!(v["rank"], serde_json::Value::Null);
+}

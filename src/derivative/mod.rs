@@ -306,7 +306,8 @@ pub const LIST_LIMIT: u64 = 1_000_000;
 
 /// Finds the pattern an ID names on `parent` (whose label the caller has matched): the search
 /// of its list and the pattern itself. Refuses numbers past the end (checked by counting first)
-/// and lists past [`LIST_LIMIT`].
+/// and numbers above [`LIST_LIMIT`] (the walk to the pattern costs about its number; the list
+/// itself may be longer).
 pub fn find_pattern(
     parent: &Parent,
     id: &PatternId,
