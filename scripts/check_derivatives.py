@@ -11,6 +11,9 @@
    `write_reference_sdf` in tests/suite/derivative.rs) is read and sanitised by RDKit; the script
    reports formula, formal charge, radical electrons and the range of bond lengths per element
    pair.
+4. Exported SDF: `cagerank export --ids <pattern IDs> --format sdf` writes derivatives of
+   C60 (H, F, Cl, CH2 bridges, N, B; and C59N+ with --charge 1) into a temporary directory;
+   RDKit sanitises every file and its formula must equal the `formula` field the export wrote.
 
     pip install numpy networkx rdkit
     cargo build --release
@@ -18,8 +21,10 @@
 """
 import json
 import os
+import re
 import subprocess
 import sys
+import tempfile
 
 import networkx as nx
 import numpy as np
@@ -29,7 +34,8 @@ BIN = os.path.join(ROOT, "target", "release", "cagerank")
 
 
 def run(*args):
-    out = subprocess.run([BIN, *args], check=True, capture_output=True, text=True)
+    env = dict(os.environ, CAGERANK_CATALOGUE=os.path.join(ROOT, "catalogues"))
+    out = subprocess.run([BIN, *args], check=True, capture_output=True, text=True, env=env)
     return out.stdout
 
 
@@ -112,12 +118,11 @@ def check_hetero(element):
     return worst > 1e-9
 
 
-def check_sdf():
+def check_sdf(path=os.path.join(ROOT, "tests", "data", "derivatives.sdf"), label="sdf"):
     from rdkit import Chem, RDLogger
     from rdkit.Chem import rdMolDescriptors
 
     RDLogger.DisableLog("rdApp.warning")
-    path = os.path.join(ROOT, "tests", "data", "derivatives.sdf")
     supplier = Chem.SDMolSupplier(path, sanitize=False, removeHs=False)
     failures = 0
     for mol in supplier:
@@ -126,7 +131,7 @@ def check_sdf():
             Chem.SanitizeMol(mol)
         except Exception as e:  # RDKit raises several exception types on bad valences
             failures += 1
-            print(f"sdf {name}: SANITIZE FAILED: {e}")
+            print(f"{label} {name}: SANITIZE FAILED: {e}")
             continue
         conf = mol.GetConformer()
         lengths = {}
@@ -138,8 +143,44 @@ def check_sdf():
             lengths[key] = (min(lo, d), max(hi, d))
         radicals = sum(a.GetNumRadicalElectrons() for a in mol.GetAtoms())
         ranges = ", ".join(f"{k} {lo:.2f}-{hi:.2f}" for k, (lo, hi) in sorted(lengths.items()))
-        print(f"sdf {name}: sanitised, {rdMolDescriptors.CalcMolFormula(mol)}, charge "
+        formula = rdMolDescriptors.CalcMolFormula(mol)
+        if mol.HasProp("formula") and split_formula(mol.GetProp("formula")) != split_formula(formula):
+            failures += 1
+            print(f"{label} {name}: FORMULA {formula} but the file says {mol.GetProp('formula')}")
+        print(f"{label} {name}: sanitised, {formula}, charge "
               f"{Chem.GetFormalCharge(mol)}, radical electrons {radicals}; bonds Å: {ranges}")
+    return failures
+
+
+def split_formula(text):
+    """(elements, charge) of a formula with its charge written either way: RDKit's `C60H2-2`
+    and `C59N+`, or cagerank's `C60H2 2-` and `C59N+`."""
+    m = re.fullmatch(r"(.*?)(?: (\d+)([+-])|([+-])(\d*))?", text.strip())
+    body, size_first, sign_last, sign_first, size_last = m.groups()
+    sign = sign_last or sign_first
+    if sign is None:
+        return (body, 0)
+    size = int(size_first or size_last or 1)
+    return (body, size if sign == "+" else -size)
+
+
+EXPORTED = [
+    ("0", "C60:IPR-1+2H:5,C60:IPR-1+4F:217,C60:IPR-1+2Cl:3,C60:IPR-1+2CH2@66:8,"
+          "C60:IPR-1+2CH2:1,C60:IPR-1+2N:5,C60:IPR-1+2B:7,C60:IPR-1+2H:1"),
+    ("1", "C60:IPR-1+1N:1"),
+    ("-2", "C60:IPR-1+2H:5"),
+]
+
+
+def check_exported_sdf():
+    failures = 0
+    with tempfile.TemporaryDirectory() as tmp:
+        for charge, ids in EXPORTED:
+            out = os.path.join(tmp, f"charge{charge}")
+            run("export", "--ids", ids, "--charge", charge, "--format", "sdf", "--out", out)
+            for name in sorted(os.listdir(out)):
+                if name.endswith(".sdf") and name != "shortlist.sdf":
+                    failures += check_sdf(os.path.join(out, name), f"export {name}:")
     return failures
 
 
@@ -154,6 +195,7 @@ def main():
     bad += check_hetero("N")
     bad += check_hetero("B")
     bad += check_sdf()
+    bad += check_exported_sdf()
     print("all checks passed" if bad == 0 else f"{bad} checks FAILED")
     return 0 if bad == 0 else 1
 

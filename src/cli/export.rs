@@ -3,15 +3,18 @@
 //!
 //! The shortlist is either explicit IDs, the top K of a catalogue (`--catalogue`, or the default
 //! catalogue when it holds the list), or — without one — the top K after enumerating and scoring
-//! the whole size here. Every file is named by an ID that says its list (`C84_IPR-23.xyz`), and
-//! no file is replaced unless `--overwrite` says so. The science (numbers, scores, geometry,
-//! file formats) lives in the library.
+//! the whole size here. Explicit IDs may be pattern IDs of derivatives (`C60:IPR-1+2H:5`),
+//! written with their addend or hetero atoms. Every file is named by an ID that says its list
+//! (`C84_IPR-23.xyz`, `C60_IPR-1+2H-5.sdf`), and no file is replaced unless `--overwrite` says
+//! so. The science (numbers, scores, geometry, file formats) lives in the library.
 
 use super::CliError;
 use cagerank::cage::FaceSet;
 use cagerank::catalogue::energies::{self, EnergyHeader};
 use cagerank::catalogue::query::{query, Filter, Query};
 use cagerank::catalogue::{self, data_file_name, Record};
+use cagerank::derivative::named::Named;
+use cagerank::derivative::{DeriveError, Parent, PatternId};
 use cagerank::enumerate::{self, Spec};
 use cagerank::export::{self, deck, Entry, Format, Numbers, TightBinding, WriteOptions, CAUTION};
 use cagerank::id::{IdError, IsomerId, List};
@@ -37,8 +40,9 @@ pub struct Args {
     /// Export the K best-ranked isomers of the size (K >= 1).
     #[arg(long, value_name = "K", conflicts_with = "ids")]
     pub top: Option<usize>,
-    /// Export these isomers, e.g. C84:IPR-22,C84:IPR-23 or C84:all-51591; a bare C84:23 is read
-    /// in the IPR list with --ipr, else in the complete list.
+    /// Export these isomers, e.g. C84:IPR-22,C84:IPR-23 or C84:all-51591, or derivatives by
+    /// pattern ID, e.g. C60:IPR-1+2H:5 (see `cagerank derive`); a bare C84:23 is read in the
+    /// IPR list with --ipr, else in the complete list.
     #[arg(long, value_name = "IDS")]
     pub ids: Option<String>,
     #[command(flatten)]
@@ -64,11 +68,29 @@ pub struct Args {
 /// One isomer to export: its ID, canonical spiral and list numbers.
 type Pick = (IsomerId, Spiral, Numbers);
 
+/// One item of the shortlist: a cage, or a derivative with its parent's ID and numbers.
+enum Item {
+    Cage(Pick),
+    Pattern(IsomerId, Numbers, Box<Named>),
+}
+
+impl Item {
+    fn stem(&self) -> String {
+        match self {
+            Item::Cage(p) => p.0.file_stem(),
+            Item::Pattern(_, _, named) => named.file_stem(),
+        }
+    }
+}
+
 pub fn run(args: Args) -> Result<(), CliError> {
     let formats = Format::parse_list(&args.format).map_err(|e| CliError::usage(e.to_string()))?;
     let method = method(&args, &formats)?;
-    let picks = shortlist(&args)?;
-    let stems: Vec<String> = picks.iter().map(|p| p.0.file_stem()).collect();
+    let picks: Vec<Item> = match (&args.ids, args.top) {
+        (Some(ids), None) => by_ids(ids, &args)?,
+        _ => shortlist(&args)?.into_iter().map(Item::Cage).collect(),
+    };
+    let stems: Vec<String> = picks.iter().map(Item::stem).collect();
     export::check_targets(
         &export::planned_files(&stems, &formats),
         &args.out,
@@ -79,7 +101,23 @@ pub fn run(args: Args) -> Result<(), CliError> {
         .map_err(|e| CliError::failed(format!("cannot create {}: {e}", args.out.display())))?;
     let mut entries: Vec<Entry> = Vec::with_capacity(picks.len());
     let energy_dir = numbers_dir(&args);
-    for (id, spiral, numbers) in &picks {
+    for item in &picks {
+        let (id, spiral, numbers) = match item {
+            Item::Cage(pick) => pick,
+            Item::Pattern(parent, numbers, named) => {
+                let entry = export::derivative::prepare(*parent, *numbers, named)
+                    .map_err(|e| CliError::failed(e.to_string()))?;
+                if !entry.geometry.converged {
+                    eprintln!(
+                        "warning: {}: force-field relaxation of the parent stopped with residual force {:.2e} eV/Å",
+                        named.id,
+                        entry.geometry.max_force_ev_per_angstrom
+                    );
+                }
+                entries.push(entry);
+                continue;
+            }
+        };
         let mut entry =
             export::prepare(*id, spiral, *numbers, args.charge.charge).map_err(|e| match e {
                 export::ExportError::Score(_) => CliError::usage(e.to_string()),
@@ -134,7 +172,6 @@ fn method(args: &Args, formats: &[Format]) -> Result<Option<String>, CliError> {
 
 fn shortlist(args: &Args) -> Result<Vec<Pick>, CliError> {
     match (&args.ids, args.top) {
-        (Some(ids), None) => by_ids(ids, args),
         (None, Some(0)) => Err(CliError::usage(
             "--top 0 exports nothing; give K >= 1 (or list isomers with --ids)",
         )),
@@ -265,41 +302,111 @@ impl LazyBar {
     }
 }
 
-fn by_ids(ids: &str, args: &Args) -> Result<Vec<Pick>, CliError> {
-    let mut asked: Vec<IsomerId> = Vec::new();
+fn by_ids(ids: &str, args: &Args) -> Result<Vec<Item>, CliError> {
+    let mut asked: Vec<String> = Vec::new();
     for text in ids.split(',').map(str::trim).filter(|s| !s.is_empty()) {
-        let id = parse_id(text, args.ipr)?;
-        if args.atoms.is_some_and(|a| a != u64::from(id.atoms)) {
-            return Err(CliError::usage(format!(
-                "{id} does not have the {} atoms given by --atoms",
-                args.atoms.unwrap_or_default()
-            )));
-        }
-        if asked.contains(&id) {
-            eprintln!("cagerank: note: {id} is listed more than once; exported once");
-            continue;
-        }
-        asked.push(id);
-    }
-    if asked.is_empty() {
-        return Err(CliError::usage(
-            "--ids is empty; list IDs like C84:IPR-22,C84:IPR-23",
-        ));
-    }
-    let dir = numbers_dir(args);
-    let mut out: Vec<Pick> = Vec::new();
-    for id in asked {
-        let (spiral, numbers) = locate(id, dir.as_deref(), true)?;
-        if let Some(first) = out.iter().find(|p| p.1 == spiral) {
+        if asked.iter().any(|a| a == text) {
             eprintln!(
-                "cagerank: note: {id} is the same isomer as {}; exported once, as {}",
-                first.0, first.0
+                "cagerank: note: {} is listed more than once; exported once",
+                cagerank::id::printable(text)
             );
             continue;
         }
-        out.push((id, spiral, numbers));
+        asked.push(text.to_string());
+    }
+    if asked.is_empty() {
+        return Err(CliError::usage(
+            "--ids is empty; list IDs like C84:IPR-22,C84:IPR-23 or C60:IPR-1+2H:5",
+        ));
+    }
+    let dir = numbers_dir(args);
+    let mut out: Vec<Item> = Vec::new();
+    for text in asked {
+        if is_pattern(&text) {
+            let (parent, numbers, named) = locate_pattern(
+                &text,
+                args.ipr,
+                dir.as_deref(),
+                true,
+                Some(args.charge.charge),
+            )?;
+            check_atoms(args, parent)?;
+            let duplicate = out
+                .iter()
+                .any(|item| matches!(item, Item::Pattern(_, _, other) if other.id == named.id));
+            if duplicate {
+                eprintln!(
+                    "cagerank: note: {} is listed more than once; exported once",
+                    named.id
+                );
+                continue;
+            }
+            out.push(Item::Pattern(parent, numbers, Box::new(named)));
+            continue;
+        }
+        let id = parse_id(&text, args.ipr)?;
+        check_atoms(args, id)?;
+        let (spiral, numbers) = locate(id, dir.as_deref(), true)?;
+        let first = out.iter().find_map(|item| match item {
+            Item::Cage(p) if p.1 == spiral => Some(p.0),
+            _ => None,
+        });
+        // The text differed (`C70:ipr-1` after `C70:IPR-1`), the ID or the isomer may not.
+        match first {
+            Some(first) if first == id => {
+                eprintln!("cagerank: note: {id} is listed more than once; exported once");
+                continue;
+            }
+            Some(first) => {
+                eprintln!(
+                    "cagerank: note: {id} is the same isomer as {first}; exported once, as {first}"
+                );
+                continue;
+            }
+            None => {}
+        }
+        out.push(Item::Cage((id, spiral, numbers)));
     }
     Ok(out)
+}
+
+/// Refuses an ID whose size contradicts `--atoms`.
+fn check_atoms(args: &Args, id: IsomerId) -> Result<(), CliError> {
+    match args.atoms {
+        Some(a) if a != u64::from(id.atoms) => Err(CliError::usage(format!(
+            "{id} does not have the {a} atoms given by --atoms"
+        ))),
+        _ => Ok(()),
+    }
+}
+
+/// True for a pattern ID (`C60:IPR-1+2H:5`): isomer IDs never contain `+`.
+pub fn is_pattern(text: &str) -> bool {
+    text.contains('+')
+}
+
+/// Finds the pattern a pattern ID names: its parent through [`locate`] (catalogue or search;
+/// both list numbers with `both`), then the pattern in the parent's list, scored with `charge`
+/// (`None`: whatever charge scores, for callers that need only sites and symmetry). Every
+/// failure is the user's to fix (exit 2), with the library's one-line reason.
+pub fn locate_pattern(
+    text: &str,
+    ipr: bool,
+    catalogue: Option<&Path>,
+    both: bool,
+    charge: Option<i32>,
+) -> Result<(IsomerId, Numbers, Named), CliError> {
+    let usage = |e: DeriveError| CliError::usage(e.to_string());
+    let pattern = PatternId::parse(text).map_err(usage)?;
+    let parent_id = parse_id(&pattern.parent, ipr)?;
+    let (spiral, numbers) = locate(parent_id, catalogue, both)?;
+    let parent = Parent::new(parent_id.to_string(), &spiral).map_err(usage)?;
+    let named = match charge {
+        Some(q) => Named::new(parent, &pattern, q),
+        None => Named::any_charge(parent, &pattern),
+    }
+    .map_err(usage)?;
+    Ok((parent_id, numbers, named))
 }
 
 /// The ID of a listed isomer in the list the user asked for.

@@ -1,5 +1,7 @@
 //! `cagerank show`: every descriptor of one isomer, named by its ID (`C84:IPR-23`) or spiral,
-//! with its stored tight-binding energy when the catalogue has one.
+//! with its stored tight-binding energy when the catalogue has one; or of one derivative,
+//! named by its pattern ID (`C60:IPR-1+2H:5`): sites, the pattern's symmetry, the remaining pi
+//! system's Kekulé count and Hückel levels, and its place in the default ranking.
 //!
 //! Looks the isomer up through `identify::numbers` (a catalogue index when one holds the size,
 //! else a search that stops at the isomer), asks `score::full_record` for the numbers and prints
@@ -11,7 +13,10 @@ use super::query::{catalogue_dir, catalogue_error};
 use super::CliError;
 use cagerank::cage::FaceSet;
 use cagerank::catalogue::energies::{self, EnergyHeader, EnergyRecord};
+use cagerank::derivative::named::{Named, Rank, RANK_LIMIT};
+use cagerank::derivative::{huckel, BondFilter, Hetero, Kind, PatternId};
 use cagerank::enumerate;
+use cagerank::export::Numbers;
 use cagerank::id::{IsomerId, List};
 use cagerank::score::{self, nmr, Descriptors, FullRecord, ScoreError};
 use cagerank::spiral::{canonical_spiral, Spiral};
@@ -28,7 +33,8 @@ quantum chemistry.";
 #[derive(clap::Args, Debug)]
 pub struct Args {
     /// The isomer: `C84:IPR-23` (IPR list), `C84:all-51591` (complete list), a bare `C84:23`
-    /// (complete list, or the IPR list with --ipr), or just the size `C60` with --spiral.
+    /// (complete list, or the IPR list with --ipr), or just the size `C60` with --spiral; or a
+    /// derivative by pattern ID, `C60:IPR-1+2H:5` (see `cagerank derive`).
     #[arg(value_name = "ID")]
     pub id: String,
     /// Read a bare number in ID as a position in the IPR list.
@@ -53,6 +59,9 @@ pub struct Args {
 
 pub fn run(args: Args) -> Result<(), CliError> {
     let dir = catalogue_dir(&args.catalogue);
+    if super::export::is_pattern(&args.id) {
+        return show_pattern(&args, &dir);
+    }
     let (atoms, id) = parse_id(&args.id, args.ipr)?;
     let (spiral, number, ipr_number) = match (&args.spiral, id) {
         (Some(list), None) => from_spiral(atoms, list, &args)?,
@@ -92,6 +101,244 @@ pub fn run(args: Args) -> Result<(), CliError> {
         write_line(&mut out, CAUTION)?;
     }
     out.finish()
+}
+
+/// Shows one derivative: the pattern's block (or JSON object) and the caution.
+fn show_pattern(args: &Args, dir: &Path) -> Result<(), CliError> {
+    if args.spiral.is_some() {
+        return Err(CliError::usage(
+            "a pattern ID names its parent already; leave out --spiral",
+        ));
+    }
+    let catalogue = dir.is_dir().then_some(dir);
+    let (parent_id, numbers, named) = super::export::locate_pattern(
+        &args.id,
+        args.ipr,
+        catalogue,
+        !args.no_numbers && u64::from(parent_id_atoms(&args.id)) <= COMPLETE_LIST_LIMIT,
+        Some(args.charge.charge),
+    )?;
+    let rank = named.rank(RANK_LIMIT);
+    let (centres, electrons) = named.pi_system();
+    let parent_ids = parent_ids_text(parent_id, numbers);
+    let mut out = Out::stdout();
+    if args.json {
+        let mut value = serde_json::to_value(&named.score)
+            .map_err(|e| CliError::failed(format!("cannot encode JSON: {e}")))?;
+        if let Some(map) = value.as_object_mut() {
+            map.insert("formula".into(), named.formula().into());
+            map.insert("parent".into(), parent_id.to_string().into());
+            map.insert("parent_number".into(), numbers.number.into());
+            map.insert("parent_ipr_number".into(), numbers.ipr_number.into());
+            map.insert(
+                "parent_spiral".into(),
+                named.parent.spiral.to_string().into(),
+            );
+            map.insert("kind".into(), named.id.kind.token().into());
+            map.insert("k".into(), named.id.k.into());
+            map.insert("charge".into(), named.charge.into());
+            map.insert("pi_centres".into(), centres.into());
+            map.insert("pi_electrons".into(), electrons.into());
+            map.insert(
+                "group_order".into(),
+                named.parent.automorphisms.len().into(),
+            );
+            map.insert(
+                "heteroatom_parameters".into(),
+                hetero_parameters(named.id.kind).into(),
+            );
+            map.insert("rank".into(), rank.map(|r| r.position).into());
+            map.insert("rank_of".into(), rank.map(|r| r.of).into());
+        }
+        write_line(&mut out, &value.to_string())?;
+        eprintln!("{CAUTION}");
+    } else {
+        let block = pattern_block(&named, &parent_ids, (centres, electrons), rank);
+        for line in block {
+            write_line(&mut out, &line)?;
+        }
+        write_line(&mut out, CAUTION)?;
+    }
+    out.finish()
+}
+
+/// The atom count of a pattern ID's parent, for deciding whether the complete-list number is
+/// worth a search (0 when it does not parse; `locate_pattern` reports that properly).
+fn parent_id_atoms(text: &str) -> u32 {
+    PatternId::parse(text)
+        .ok()
+        .and_then(|p| IsomerId::parse(&p.parent, Some(List::All)).ok())
+        .map_or(0, |id| id.atoms)
+}
+
+/// "C60:IPR-1 = C60:all-1812": the parent's ID as asked and its ID in the other list.
+fn parent_ids_text(id: IsomerId, numbers: Numbers) -> String {
+    let mut text = id.to_string();
+    for (list, n) in [(List::All, numbers.number), (List::Ipr, numbers.ipr_number)] {
+        if let Some(n) = n.filter(|_| list != id.list) {
+            text.push_str(&format!(" = {}", IsomerId::new(id.atoms, list, n)));
+        }
+    }
+    text
+}
+
+/// The Van-Catledge parameters the pattern's Hückel levels use, as text.
+fn hetero_parameters(kind: Kind) -> String {
+    let h = |x: Option<Hetero>| huckel::coulomb(x);
+    let k = |a: Option<Hetero>, b: Option<Hetero>| huckel::resonance(a, b);
+    match kind {
+        Kind::Substitute(x) => {
+            let s = x.symbol();
+            format!(
+                "h_{s} {:.2}, k_C{s} {:.2}, k_{s}{s} {:.2} (Van-Catledge 1980)",
+                h(Some(x)),
+                k(None, Some(x)),
+                k(Some(x), Some(x))
+            )
+        }
+        _ => "none (carbon only: h 0, k 1)".to_string(),
+    }
+}
+
+/// What the pattern places, in words: "2 H addends on atoms", "2 CH2 bridges on 6:6 bonds".
+fn kind_words(kind: Kind, k: usize) -> String {
+    let plural = |one: &str, many: &str| if k == 1 { one } else { many }.to_string();
+    match kind {
+        Kind::Addend(a) => format!("{k} {} {}", a.symbol(), plural("addend", "addends")),
+        Kind::Bridge(f) => format!(
+            "{k} CH2 {} {}",
+            plural("bridge", "bridges"),
+            match f {
+                BondFilter::Any => "across bonds",
+                BondFilter::HexHex => "across 6:6 bonds",
+                BondFilter::PentHex => "across 6:5 bonds",
+            }
+        ),
+        Kind::Substitute(h) => format!(
+            "{k} {} {} in place of carbon",
+            h.symbol(),
+            plural("atom", "atoms")
+        ),
+    }
+}
+
+/// The pattern's block, grouped under identity, symmetry, pi system, electronic structure and
+/// ranking, with units in the labels.
+fn pattern_block(
+    named: &Named,
+    parent_ids: &str,
+    (centres, electrons): (usize, i64),
+    rank: Option<Rank>,
+) -> Vec<String> {
+    let s = &named.score;
+    let row = |label: &str, value: String| format!("  {label:<31}{value}");
+    let on_bonds = named.id.kind.on_bonds();
+    let places = if on_bonds {
+        format!(
+            "{} 6:6, {} 6:5, {} 5:5 bonds",
+            s.bonds_66, s.bonds_56, s.bonds_55
+        )
+    } else {
+        format!(
+            "{} on a pentagon, {} only on hexagons",
+            s.pentagon_atoms, s.hexagon_atoms
+        )
+    };
+    let charge = named.charge;
+    let mut lines = vec![
+        format!(
+            "{}  {}  {}  charge {charge:+}",
+            named.id,
+            named.formula(),
+            s.point_group
+        ),
+        "identity".to_string(),
+        row("pattern ID", named.id.to_string()),
+        row("parent", parent_ids.to_string()),
+        row("parent canonical spiral", named.parent.spiral.to_string()),
+        row("formula", named.formula()),
+        row("what", kind_words(named.id.kind, named.id.k)),
+        row(
+            if on_bonds {
+                "sites (bonds: atoms)"
+            } else {
+                "sites (atoms)"
+            },
+            named.sites_text(),
+        ),
+        row("where", places),
+        "symmetry".to_string(),
+        row(
+            "point group (stabiliser)",
+            format!(
+                "{}, {} of {} automorphisms, {}",
+                s.point_group,
+                s.stabiliser,
+                named.parent.automorphisms.len(),
+                if s.chiral { "chiral" } else { "achiral" }
+            ),
+        ),
+        row(
+            "equivalent placements",
+            format!("{} (orbit on the numbered cage)", s.orbit),
+        ),
+        "pi system (remaining graph)".to_string(),
+        row("pi centres, electrons", format!("{centres}, {electrons}")),
+        row("Kekulé structures", s.kekule.clone()),
+        row(
+            "radical",
+            if s.radical {
+                "yes: no Kekulé structure, the neutral derivative is a radical".to_string()
+            } else if !s.kekule_structure {
+                "no closed-shell Kekulé structure (charged or substituted)".to_string()
+            } else {
+                "no".to_string()
+            },
+        ),
+        format!("electronic structure (Hückel, charge {charge:+})"),
+        row("heteroatom parameters", hetero_parameters(named.id.kind)),
+        row(
+            "HOMO, LUMO, gap (|beta|)",
+            format!("{:.4}, {:.4}, {:.4}", s.homo, s.lumo, s.gap),
+        ),
+        row(
+            "pi energy (|beta|)",
+            format!(
+                "{:.4} total, {:.4} per pi centre",
+                s.pi_energy,
+                s.pi_energy / centres.max(1) as f64
+            ),
+        ),
+        "ranking (default screening order, docs/derivatives.md)".to_string(),
+    ];
+    lines.push(row(
+        "rank in its list",
+        match rank {
+            Some(r) => format!(
+                "{} of {} ({}+{}{} with charge {charge:+})",
+                r.position,
+                r.of,
+                named.parent.label,
+                named.id.k,
+                named.id.kind.token()
+            ),
+            None => format!(
+                "not computed: the list has more than {RANK_LIMIT} patterns; `cagerank derive` \
+                 with --top T ranks it"
+            ),
+        },
+    ));
+    lines.push(row(
+        "keys in order",
+        format!(
+            "Kekulé structure {}; pi energy {:.4}; gap {:.4}; Kekulé count {}",
+            if s.kekule_structure { "yes" } else { "no" },
+            s.pi_energy,
+            s.gap,
+            s.kekule
+        ),
+    ));
+    lines
 }
 
 /// Splits `C84:IPR-23`, `C84:23` (list from `--ipr`) or a bare size `C84` into the atom count

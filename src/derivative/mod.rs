@@ -18,7 +18,8 @@
 //! the remaining pi system with deleted atoms, by a Pfaffian orientation of the plane subgraph),
 //! [`huckel`] (Hückel levels with heteroatom parameters), [`score`] (the per-pattern record and
 //! the default ranking), [`structure`] (3D positions of addend atoms and an SDF-ready
-//! description). This module owns the shared vocabulary: [`Kind`], [`Parent`], [`Problem`],
+//! description), [`named`] (one pattern resolved from its ID for `show`, `export` and `draw`:
+//! sites, scores, symmetry, rank in its list, molecule). This module owns the shared vocabulary: [`Kind`], [`Parent`], [`Problem`],
 //! [`PatternId`] and [`DeriveError`]. It does no I/O; printing is the CLI's, files are
 //! `export`'s. Rankings built here are screening heuristics, not predictions of real-world
 //! stability or safety.
@@ -27,6 +28,7 @@ pub mod burnside;
 pub mod group;
 pub mod huckel;
 pub mod kekule;
+pub mod named;
 pub mod orbits;
 pub mod score;
 pub mod structure;
@@ -304,7 +306,8 @@ pub const LIST_LIMIT: u64 = 1_000_000;
 
 /// Finds the pattern an ID names on `parent` (whose label the caller has matched): the search
 /// of its list and the pattern itself. Refuses numbers past the end (checked by counting first)
-/// and lists past [`LIST_LIMIT`].
+/// and numbers above [`LIST_LIMIT`] (the walk to the pattern costs about its number; the list
+/// itself may be longer).
 pub fn find_pattern(
     parent: &Parent,
     id: &PatternId,
@@ -372,6 +375,36 @@ impl PatternId {
     }
 }
 
+impl PatternId {
+    /// The stem of file names for this pattern: the parent's file stem (`C60_IPR-1`), `+`, K and
+    /// the kind with `@` written `_`, `-` and the number: `C60_IPR-1+2H-5`,
+    /// `C60_IPR-1+2CH2_66-3`. Only ASCII letters, digits, `_`, `-` and `+` occur (all portable
+    /// in file names and safe in shells), and distinct IDs give distinct stems on
+    /// case-insensitive file systems too (no two kind tokens differ only in case).
+    pub fn file_stem(&self) -> String {
+        let parent = match crate::id::IsomerId::parse(&self.parent, None) {
+            Ok(id) => id.file_stem(),
+            Err(_) => self
+                .parent
+                .chars()
+                .map(|c| {
+                    if c.is_ascii_alphanumeric() || c == '-' {
+                        c
+                    } else {
+                        '_'
+                    }
+                })
+                .collect(),
+        };
+        format!(
+            "{parent}+{}{}-{}",
+            self.k,
+            self.kind.token().replace('@', "_"),
+            self.number
+        )
+    }
+}
+
 impl fmt::Display for PatternId {
     fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
         write!(
@@ -407,5 +440,23 @@ mod tests {
         ] {
             assert!(PatternId::parse(bad).is_err(), "{bad}");
         }
+    }
+
+    #[test]
+    fn file_stems_are_portable_and_distinct() {
+        let stem = |t: &str| PatternId::parse(t).unwrap().file_stem();
+        assert_eq!(stem("C60:IPR-1+2H:5"), "C60_IPR-1+2H-5");
+        assert_eq!(stem("C60:all-1812+3CH2@66:12"), "C60_all-1812+3CH2_66-12");
+        let tokens = ["H", "F", "Cl", "CH2", "CH2@66", "CH2@56", "N", "B"];
+        let mut stems: Vec<String> = tokens
+            .iter()
+            .map(|t| stem(&format!("C60:IPR-1+2{t}:1")).to_ascii_lowercase())
+            .collect();
+        assert!(stems.iter().all(|s| s
+            .bytes()
+            .all(|b| b.is_ascii_alphanumeric() || b"_-+".contains(&b))));
+        stems.sort();
+        stems.dedup();
+        assert_eq!(stems.len(), tokens.len());
     }
 }

@@ -297,22 +297,50 @@ impl Search {
     }
 
     /// The pattern with this 1-based number, and how many patterns were passed on the way.
+    ///
+    /// One thread, depth first, stopping at the pattern: its cost grows with `number`, not with
+    /// the list. ([`Search::stream`] completes a whole window of units before handing on the
+    /// first pattern, which for C60 with 8 addends is most of a 21-million list.)
     pub fn nth(&self, number: u64) -> Result<Found, u64> {
-        let mut hit = None;
-        let mut seen = 0;
-        self.stream(
-            |f| f.clone(),
-            |n, f| {
-                seen = n;
-                if n == number {
-                    hit = Some(f);
-                    ControlFlow::Break(())
-                } else {
-                    ControlFlow::Continue(())
-                }
-            },
-        );
-        hit.ok_or(seen)
+        let mut seen = 0u64;
+        let mut hit: Option<Vec<u32>> = None;
+        let mut set = Vec::with_capacity(self.k);
+        let mut used = self.used_by(&[]);
+        let _ = self.walk(&mut set, &mut used, &mut |s| {
+            seen += 1;
+            if seen == number {
+                hit = Some(s.to_vec());
+                ControlFlow::Break(())
+            } else {
+                ControlFlow::Continue(())
+            }
+        });
+        hit.map(|sites| Found {
+            stabiliser: self.stabiliser(&sites),
+            sites,
+        })
+        .ok_or(seen)
+    }
+
+    /// As [`Search::complete`], but `out` may stop the walk.
+    fn walk(
+        &self,
+        set: &mut Vec<u32>,
+        used: &mut Vec<bool>,
+        out: &mut dyn FnMut(&[u32]) -> ControlFlow<()>,
+    ) -> ControlFlow<()> {
+        if set.len() == self.k {
+            return out(set);
+        }
+        for x in self.children(set, used) {
+            self.mark(x, used, true);
+            set.push(x);
+            let flow = self.walk(set, used, out);
+            set.pop();
+            self.mark(x, used, false);
+            flow?;
+        }
+        ControlFlow::Continue(())
     }
 
     /// Numbers of the given canonical forms in this search's list (`None` if not listed), found

@@ -20,6 +20,7 @@
 
 use super::orbits::Search;
 use super::{kekule, Addend, Kind, Parent};
+use std::collections::BTreeMap;
 use std::fmt::Write;
 
 /// Typical bond lengths in Å (sp3 carbon to H, F, Cl; C-C single), from memory: Allen et al.,
@@ -54,6 +55,86 @@ pub struct Molecule {
 impl Molecule {
     pub fn charge(&self) -> i32 {
         self.atoms.iter().map(|a| i32::from(a.charge)).sum()
+    }
+
+    /// All electrons of the molecule: the atomic numbers minus the charge. Quantum-chemistry
+    /// decks need it for the spin multiplicity.
+    pub fn electrons(&self) -> i64 {
+        self.atoms
+            .iter()
+            .map(|a| i64::from(atomic_number(a.element)))
+            .sum::<i64>()
+            - i64::from(self.charge())
+    }
+
+    /// Spin multiplicity of the lowest spin state: a singlet for an even electron count, a
+    /// doublet for an odd one. A pattern with radical centres and an even count may instead be
+    /// a triplet; choosing that is left to the user.
+    pub fn multiplicity(&self) -> u32 {
+        if self.electrons().rem_euclid(2) == 1 {
+            2
+        } else {
+            1
+        }
+    }
+
+    /// Carbons flagged as radical centres (no partner in the maximum matching, no charge).
+    pub fn radical_centres(&self) -> usize {
+        self.atoms.iter().filter(|a| a.radical).count()
+    }
+
+    /// Molecular formula in Hill order with the charge, see [`hill_formula`].
+    pub fn formula(&self) -> String {
+        let mut counts: BTreeMap<&str, usize> = BTreeMap::new();
+        for a in &self.atoms {
+            *counts.entry(a.element).or_default() += 1;
+        }
+        hill_formula(counts, self.charge())
+    }
+}
+
+/// A formula in Hill order (C, then H, then the others alphabetically; Hill, J. Am. Chem. Soc.
+/// 22 (1900) 478, from memory) with the charge as a suffix: `C60H2`, `C59N+`, `C60H2 2-`.
+pub fn hill_formula(mut counts: BTreeMap<&str, usize>, charge: i32) -> String {
+    let mut text = String::new();
+    let mut put = |element: &str, n: usize| {
+        if n == 0 {
+            return;
+        }
+        text.push_str(element);
+        if n > 1 {
+            text.push_str(&n.to_string());
+        }
+    };
+    for first in ["C", "H"] {
+        if let Some(n) = counts.remove(first) {
+            put(first, n);
+        }
+    }
+    for (element, n) in counts {
+        put(element, n);
+    }
+    match charge {
+        0 => {}
+        1 => text.push('+'),
+        -1 => text.push('-'),
+        q if q > 0 => text.push_str(&format!(" {q}+")),
+        q => text.push_str(&format!(" {}-", -q)),
+    }
+    text
+}
+
+/// Atomic number of the elements a derivative can hold (0 for anything else, which `build`
+/// never makes).
+pub fn atomic_number(element: &str) -> u32 {
+    match element {
+        "H" => 1,
+        "B" => 5,
+        "C" => 6,
+        "N" => 7,
+        "F" => 9,
+        "Cl" => 17,
+        _ => 0,
     }
 }
 

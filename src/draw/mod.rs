@@ -1,9 +1,11 @@
 //! Schlegel diagrams of cages as SVG: the cage seen through one face and flattened onto the
 //! plane without edge crossings, pentagons filled, optionally coloured by Pauling bond order or
-//! ring pi-electron content, with a legend, the isomer ID and the screening caution.
+//! ring pi-electron content, with a legend, the isomer ID and the screening caution. A
+//! derivative's sites ([`Marks`]: substituted or added-to atoms, bridged bonds) are marked on
+//! its parent's diagram, with a legend entry.
 //!
 //! Layout lives in [`schlegel`], SVG text in [`svg`]; values come from `score::bonds`. Finding
-//! the cage for an ID and writing the file are left to the caller (`cli`).
+//! the cage (or pattern) for an ID and writing the file are left to the caller (`cli`).
 
 pub mod render;
 pub mod schlegel;
@@ -48,6 +50,15 @@ impl Default for Options {
     }
 }
 
+/// Sites of a derivative to mark: atoms and bonds of the cage (0-based, cage numbering) and the
+/// legend text that says what they carry (e.g. `2 H addends`).
+#[derive(Debug, Clone, PartialEq, Eq, Default)]
+pub struct Marks {
+    pub atoms: Vec<u32>,
+    pub bonds: Vec<u32>,
+    pub legend: String,
+}
+
 /// Why a drawing could not be made.
 #[derive(Debug)]
 pub enum DrawError {
@@ -80,6 +91,20 @@ pub fn schlegel_svg(
     title: &str,
     options: Options,
 ) -> Result<(), DrawError> {
+    schlegel_svg_marked(w, cage, automorphisms, title, options, None)
+}
+
+/// As [`schlegel_svg`], with a derivative's sites marked. Pass the automorphisms that keep the
+/// pattern in place (its stabiliser) so that the outer face follows the derivative's own
+/// symmetry.
+pub fn schlegel_svg_marked(
+    w: &mut impl Write,
+    cage: &Cage,
+    automorphisms: &[Automorphism],
+    title: &str,
+    options: Options,
+    marks: Option<&Marks>,
+) -> Result<(), DrawError> {
     let outer = schlegel::choose_outer(cage, automorphisms, options.outer).ok_or(
         DrawError::NoSuchFace {
             size: if options.outer == OuterFace::Pentagon {
@@ -106,6 +131,7 @@ pub fn schlegel_svg(
         edges: cage.edges(),
         colours,
         labels: options.labels,
+        marks,
     };
     svg::write(w, &picture).map_err(DrawError::Io)
 }

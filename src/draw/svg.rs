@@ -3,8 +3,10 @@
 //! travels as the document's `<desc>` (not drawn: the command prints it once on stderr).
 //!
 //! Layout (where atoms go) comes from `schlegel.rs`; the values used for colouring come from
-//! `score::bonds`. Every face is one `<path class="face">`; the outer face, which in a Schlegel
-//! diagram is the region around the drawing, is a ring between a frame and the boundary polygon.
+//! `score::bonds`. A derivative's marked bonds are wide `<path class="site-bond">` strokes under
+//! the bonds, its marked atoms `<circle class="site">` dots over them (under any labels). Every
+//! face is one `<path class="face">`; the outer face, which in a Schlegel diagram is the region
+//! around the drawing, is a ring between a frame and the boundary polygon.
 
 use std::fmt::Write as _;
 use std::io::{self, Write};
@@ -35,7 +37,13 @@ pub struct Picture<'a> {
     pub edges: &'a [[u32; 2]],
     pub colours: Colours,
     pub labels: bool,
+    /// A derivative's sites to mark, if any.
+    pub marks: Option<&'a super::Marks>,
 }
+
+/// Colour of marked sites: a strong blue, apart from the pentagon fill and the bond-order
+/// scale's teal and yellow.
+const SITE_COLOUR: &str = "#1d4ed8";
 
 fn to_screen(p: [f64; 2]) -> [f64; 2] {
     let r = SIZE / 2.0 - MARGIN;
@@ -129,7 +137,9 @@ pub fn write(w: &mut impl Write, p: &Picture<'_>) -> io::Result<()> {
         r##"<rect x="0" y="0" width="{SIZE}" height="{height}" fill="#ffffff"/>"##
     )?;
     write_faces(w, p)?;
+    write_site_bonds(w, p)?;
     write_bonds(w, p)?;
+    write_site_atoms(w, p)?;
     write_atoms(w, p)?;
     write_captions(w, p)?;
     writeln!(w, "</svg>")
@@ -192,6 +202,58 @@ fn write_bonds(w: &mut impl Write, p: &Picture<'_>) -> io::Result<()> {
     writeln!(w, "</g>")
 }
 
+fn write_site_bonds(w: &mut impl Write, p: &Picture<'_>) -> io::Result<()> {
+    let Some(marks) = p.marks.filter(|m| !m.bonds.is_empty()) else {
+        return Ok(());
+    };
+    writeln!(
+        w,
+        r#"<g id="site-bonds" stroke="{SITE_COLOUR}" stroke-width="9" stroke-linecap="round" stroke-opacity="0.75">"#
+    )?;
+    for &e in &marks.bonds {
+        let Some(&[a, b]) = p.edges.get(e as usize) else {
+            continue;
+        };
+        let [x1, y1] = to_screen(p.points[a as usize]);
+        let [x2, y2] = to_screen(p.points[b as usize]);
+        writeln!(
+            w,
+            r#"<path class="site-bond" data-edge="{e}" d="M{x1:.2},{y1:.2} L{x2:.2},{y2:.2}"/>"#
+        )?;
+    }
+    writeln!(w, "</g>")
+}
+
+fn write_site_atoms(w: &mut impl Write, p: &Picture<'_>) -> io::Result<()> {
+    let Some(marks) = p.marks.filter(|m| !m.atoms.is_empty()) else {
+        return Ok(());
+    };
+    // Bridge ends get smaller dots than substituted or added-to atoms, so the bond stays the
+    // visible mark; with labels every dot is a ring wider than the label's white disc.
+    let radius = match (marks.bonds.is_empty(), p.labels) {
+        (true, false) => 7.0,
+        (true, true) => 8.0,
+        (false, false) => 4.5,
+        (false, true) => 7.0,
+    };
+    writeln!(
+        w,
+        r##"<g id="site-atoms" fill="{SITE_COLOUR}" stroke="#ffffff" stroke-width="1">"##
+    )?;
+    for &v in &marks.atoms {
+        let Some(&pt) = p.points.get(v as usize) else {
+            continue;
+        };
+        let [x, y] = to_screen(pt);
+        writeln!(
+            w,
+            r#"<circle class="site" data-atom="{}" cx="{x:.2}" cy="{y:.2}" r="{radius}"/>"#,
+            v + 1
+        )?;
+    }
+    writeln!(w, "</g>")
+}
+
 fn write_atoms(w: &mut impl Write, p: &Picture<'_>) -> io::Result<()> {
     if !p.labels {
         return Ok(());
@@ -234,7 +296,41 @@ fn write_captions(w: &mut impl Write, p: &Picture<'_>) -> io::Result<()> {
             range(v),
         )?,
     }
+    // Beside the ring swatches; under a colour scale, right of its end value.
+    if let Some(marks) = p.marks {
+        match p.colours {
+            Colours::Faces => legend_sites(w, 330.0, y0 + 22.0, marks)?,
+            _ => legend_sites(w, 220.0, y0 + 40.0, marks)?,
+        }
+    }
     writeln!(w, "</g>")
+}
+
+/// The marked sites' legend entry: a dot for atoms or a stroke for bonds, and the text.
+fn legend_sites(w: &mut impl Write, x: f64, y: f64, marks: &super::Marks) -> io::Result<()> {
+    if marks.bonds.is_empty() {
+        writeln!(
+            w,
+            r#"<circle cx="{}" cy="{}" r="7" fill="{SITE_COLOUR}"/>"#,
+            x + 8.0,
+            y + 8.0
+        )?;
+    } else {
+        writeln!(
+            w,
+            r#"<path d="M{x},{} L{},{}" stroke="{SITE_COLOUR}" stroke-width="9" stroke-linecap="round" stroke-opacity="0.75"/>"#,
+            y + 8.0,
+            x + 16.0,
+            y + 8.0
+        )?;
+    }
+    writeln!(
+        w,
+        r#"<text class="site-legend" x="{}" y="{}">{}</text>"#,
+        x + 24.0,
+        y + 13.0,
+        escape(&marks.legend)
+    )
 }
 
 fn legend_swatch(w: &mut impl Write, x: f64, y: f64, colour: &str, label: &str) -> io::Result<()> {

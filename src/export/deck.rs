@@ -2,11 +2,12 @@
 //! with the cage's charge and spin multiplicity and one user-editable method line, so a
 //! shortlist goes straight into a geometry optimisation.
 //!
-//! Each generator takes the charge and multiplicity as parameters (the export of neutral cages
-//! passes 0 and [`multiplicity`]); nothing here knows where they come from. Decks are kept
-//! minimal: only what the code needs to run the job, in the form its manual gives. Choosing the
-//! method is the user's business; the defaults ([`Code::default_method`]) are cheap, common
-//! choices for a first optimisation, not recommendations for production.
+//! Each generator takes the charge and multiplicity as parameters (the export of cages passes
+//! the asked charge and [`multiplicity`], of derivatives the molecule's own); nothing here knows
+//! where they come from. Atoms are carbon unless [`Job::elements`] names them (derivatives).
+//! Decks are kept minimal: only what the code needs to run the job, in the form its manual
+//! gives. Choosing the method is the user's business; the defaults ([`Code::default_method`])
+//! are cheap, common choices for a first optimisation, not recommendations for production.
 
 use std::fmt::Write as _;
 
@@ -36,7 +37,9 @@ impl Code {
     /// - xTB: command-line options: GFN2-xTB (Bannwarth, Ehlert, Grimme, J. Chem. Theory Comput.
     ///   15 (2019) 1652) geometry optimisation.
     /// - CP2K: three words, functional, basis set and pseudopotential (Gaussian and plane waves
-    ///   with GTH pseudopotentials); D3(BJ) dispersion is always added.
+    ///   with GTH pseudopotentials); D3(BJ) dispersion is always added. The pseudopotential
+    ///   named is carbon's; a derivative's other elements get the same name with their own
+    ///   valence (`GTH-PBE-q4` becomes `GTH-PBE-q1` for H).
     pub fn default_method(self) -> &'static str {
         match self {
             Code::Orca => "r2SCAN-3c Opt",
@@ -95,6 +98,8 @@ pub struct Job<'a> {
     /// One line saying what the structure is, used as title or comment.
     pub title: &'a str,
     pub coords: &'a [[f64; 3]],
+    /// Element symbol of each atom (derivatives); empty means every atom is carbon.
+    pub elements: &'a [&'a str],
     pub charge: i32,
     pub multiplicity: u32,
     /// Checked with [`check_method`].
@@ -134,13 +139,60 @@ pub fn deck(code: Code, job: &Job) -> Vec<DeckFile> {
         .collect()
 }
 
-fn atom_lines(out: &mut String, coords: &[[f64; 3]], indent: &str) {
-    for c in coords {
+fn atom_lines(out: &mut String, job: &Job, indent: &str) {
+    for (i, c) in job.coords.iter().enumerate() {
         let _ = writeln!(
             out,
-            "{indent}C {:>14.8} {:>14.8} {:>14.8}",
-            c[0], c[1], c[2]
+            "{indent}{} {:>14.8} {:>14.8} {:>14.8}",
+            element(job, i),
+            c[0],
+            c[1],
+            c[2]
         );
+    }
+}
+
+fn element<'a>(job: &Job<'a>, i: usize) -> &'a str {
+    job.elements.get(i).copied().unwrap_or("C")
+}
+
+/// The distinct elements of a job in order of first appearance (carbon first for cages).
+fn kinds<'a>(job: &Job<'a>) -> Vec<&'a str> {
+    let mut out: Vec<&str> = Vec::new();
+    for i in 0..job.coords.len() {
+        let e = element(job, i);
+        if !out.contains(&e) {
+            out.push(e);
+        }
+    }
+    out
+}
+
+/// Valence electrons of the GTH pseudopotentials of the elements a derivative holds (the `qN`
+/// in their names: GTH-PBE-q1 for H, q3 for B, q4 for C, q5 for N, q7 for F and Cl; Goedecker,
+/// Teter & Hutter, Phys. Rev. B 54 (1996) 1703, and Krack, Theor. Chem. Acc. 114 (2005) 145,
+/// from memory).
+fn gth_valence(element: &str) -> Option<u32> {
+    match element {
+        "H" => Some(1),
+        "B" => Some(3),
+        "C" => Some(4),
+        "N" => Some(5),
+        "F" | "Cl" => Some(7),
+        _ => None,
+    }
+}
+
+/// The pseudopotential of `element` given the carbon one the method names: a name ending in
+/// `-qN` gets the element's valence in place of N (`GTH-PBE-q4` gives `GTH-PBE-q1` for H);
+/// any other name is used for every element as written.
+fn potential_for(element: &str, carbon: &str) -> String {
+    let stem = carbon
+        .rsplit_once("-q")
+        .filter(|(_, q)| !q.is_empty() && q.bytes().all(|b| b.is_ascii_digit()));
+    match (stem, gth_valence(element)) {
+        (Some((stem, _)), Some(q)) => format!("{stem}-q{q}"),
+        _ => carbon.to_string(),
     }
 }
 
@@ -169,7 +221,7 @@ pub fn orca(job: &Job) -> String {
     let _ = writeln!(s, "! {}", job.method);
     let _ = writeln!(s);
     let _ = writeln!(s, "* xyz {} {}", job.charge, job.multiplicity);
-    atom_lines(&mut s, job.coords, "  ");
+    atom_lines(&mut s, job, "  ");
     let _ = writeln!(s, "*");
     s
 }
@@ -185,7 +237,7 @@ pub fn gaussian(job: &Job) -> String {
     let _ = writeln!(s, "{}", if title.is_empty() { "cage" } else { &title });
     let _ = writeln!(s);
     let _ = writeln!(s, "{} {}", job.charge, job.multiplicity);
-    atom_lines(&mut s, job.coords, "");
+    atom_lines(&mut s, job, "");
     let _ = writeln!(s);
     s
 }
@@ -283,7 +335,19 @@ pub fn cp2k(job: &Job) -> String {
     let _ = writeln!(s, "    &SCF\n      SCF_GUESS ATOMIC\n      EPS_SCF 1.0E-6\n      MAX_SCF 50\n      &OT\n        MINIMIZER DIIS\n        PRECONDITIONER FULL_SINGLE_INVERSE\n      &END OT\n      &OUTER_SCF\n        EPS_SCF 1.0E-6\n        MAX_SCF 20\n      &END OUTER_SCF\n    &END SCF");
     let _ = writeln!(s, "    &XC\n      &XC_FUNCTIONAL ${{FUNCTIONAL}}\n      &END XC_FUNCTIONAL\n      &VDW_POTENTIAL\n        POTENTIAL_TYPE PAIR_POTENTIAL\n        &PAIR_POTENTIAL\n          TYPE DFTD3(BJ)\n          PARAMETER_FILE_NAME dftd3.dat\n          REFERENCE_FUNCTIONAL ${{FUNCTIONAL}}\n        &END PAIR_POTENTIAL\n      &END VDW_POTENTIAL\n    &END XC");
     let _ = writeln!(s, "  &END DFT\n  &SUBSYS\n    &CELL\n      ABC {cell:.1} {cell:.1} {cell:.1}\n      PERIODIC NONE\n    &END CELL\n    &TOPOLOGY\n      &CENTER_COORDINATES\n      &END CENTER_COORDINATES\n    &END TOPOLOGY\n    &COORD");
-    atom_lines(&mut s, job.coords, "      ");
-    let _ = writeln!(s, "    &END COORD\n    &KIND C\n      BASIS_SET ${{BASIS}}\n      POTENTIAL ${{POTENTIAL}}\n    &END KIND\n  &END SUBSYS\n&END FORCE_EVAL");
+    atom_lines(&mut s, job, "      ");
+    let _ = writeln!(s, "    &END COORD");
+    for kind in kinds(job) {
+        let potential = if kind == "C" {
+            "${POTENTIAL}".to_string()
+        } else {
+            potential_for(kind, potential)
+        };
+        let _ = writeln!(
+            s,
+            "    &KIND {kind}\n      BASIS_SET ${{BASIS}}\n      POTENTIAL {potential}\n    &END KIND"
+        );
+    }
+    let _ = writeln!(s, "  &END SUBSYS\n&END FORCE_EVAL");
     s
 }

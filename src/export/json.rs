@@ -10,6 +10,9 @@ use std::io::{self, Write};
 
 /// The full record of one entry as a JSON value.
 pub fn record(entry: &Entry) -> Value {
+    if let Some(d) = &entry.derivative {
+        return super::derivative::record(entry, d);
+    }
     let g = &entry.geometry;
     let double_bonds: Vec<[u32; 2]> = entry
         .kekule

@@ -1,5 +1,7 @@
-//! `manifest.csv`: one row per exported isomer with its ID, list, both list numbers, spiral,
-//! point group, the scalar descriptors and the files written for it (RFC 4180 quoting).
+//! `manifest.csv`: one row per exported isomer or derivative with its ID, list, both list
+//! numbers, spiral, point group, the scalar descriptors and the files written for it (RFC 4180
+//! quoting). A derivative's row is named by its pattern ID; list, numbers and spiral are its
+//! parent's, the descriptor columns its own (see `export::derivative::scalar_fields`).
 //!
 //! Columns are fixed so that manifests of different runs can be concatenated. A number that
 //! does not exist (a non-IPR cage has no IPR number) is an empty cell, so numeric columns read
@@ -46,12 +48,12 @@ pub fn write(w: &mut impl Write, entries: &[Entry], files: &[Vec<String>]) -> io
     for (entry, files) in entries.iter().zip(files) {
         let number = |n: Option<u64>| n.map_or(String::new(), |n| n.to_string());
         let mut row = vec![
-            entry.id.to_string(),
+            entry.name(),
             entry.id.list.tag().to_string(),
             number(entry.numbers.number),
             number(entry.numbers.ipr_number),
             entry.spiral.to_string(),
-            entry.record.descriptors.point_group.name(),
+            entry.point_group(),
         ];
         row.extend(scalar_fields(entry).into_iter().map(|(_, v)| v));
         row.push(files.join(" "));

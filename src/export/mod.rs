@@ -1,7 +1,8 @@
 //! Shortlist export for quantum chemistry: relaxed geometries written as XYZ, SDF (MDL V2000),
 //! JSON and input decks for ORCA, Gaussian, xTB and CP2K, one file per isomer named by its ID
 //! (`C84_IPR-23.xyz`: the ID always says its list, see `id`), plus a multi-structure SDF and
-//! `manifest.csv`.
+//! `manifest.csv`. Derivatives (pattern IDs such as `C60:IPR-1+2H:5`, see [`derivative`]) go
+//! through the same writers with their addend and hetero atoms, charges and radical centres.
 //!
 //! Writers take `impl Write`; [`write_atomic`] puts a file in place by temp file + fsync +
 //! rename, so a crash never leaves a half-written file under the final name, and [`write_all`]
@@ -9,6 +10,7 @@
 //! (catalogue query or enumeration and ranking) is the caller's business.
 
 pub mod deck;
+pub mod derivative;
 pub mod json;
 pub mod manifest;
 pub mod sdf;
@@ -51,6 +53,9 @@ pub struct Entry {
     pub tight_binding: Option<TightBinding>,
     /// The double bonds of one Kekulé structure (a perfect matching).
     pub kekule: Vec<EdgeId>,
+    /// Set when the entry is a derivative of this cage: the files then hold its molecule and
+    /// are named by its pattern ID.
+    pub derivative: Option<derivative::DerivativePart>,
 }
 
 /// What the manifest and XYZ comment say about a tight-binding geometry.
@@ -126,9 +131,9 @@ pub enum ExportError {
     NoKekule {
         id: IsomerId,
     },
-    /// SDF V2000 cannot hold the cage.
+    /// SDF V2000 cannot hold the cage (or derivative).
     TooLargeForSdf {
-        id: IsomerId,
+        id: String,
         atoms: usize,
     },
     /// A file to write is already there and replacing was not asked for.
@@ -226,6 +231,7 @@ pub fn prepare(
         geometry,
         tight_binding: None,
         kekule,
+        derivative: None,
     })
 }
 
@@ -248,18 +254,75 @@ impl Entry {
         }
     }
 
-    /// The stem every file of this entry shares: `C84_IPR-23`.
+    /// The stem every file of this entry shares: `C84_IPR-23`, or for a derivative
+    /// `C60_IPR-1+2H-5`.
     pub fn stem(&self) -> String {
-        self.id.file_stem()
+        match &self.derivative {
+            Some(d) => d.stem.clone(),
+            None => self.id.file_stem(),
+        }
     }
 
-    /// Spin multiplicity written into decks and the XYZ comment (lowest spin state).
+    /// The ID the entry's files and manifest row are named by: the isomer ID, or the pattern
+    /// ID of a derivative.
+    pub fn name(&self) -> String {
+        match &self.derivative {
+            Some(d) => d.id.clone(),
+            None => self.id.to_string(),
+        }
+    }
+
+    /// Point group of what is written: the cage's, or the derivative's (its stabiliser's).
+    pub fn point_group(&self) -> String {
+        match &self.derivative {
+            Some(d) => d.score.point_group.name(),
+            None => self.record.descriptors.point_group.name(),
+        }
+    }
+
+    /// Atoms written: the cage's, or the whole derivative's.
+    pub fn atom_count(&self) -> usize {
+        match &self.derivative {
+            Some(d) => d.molecule.atoms.len(),
+            None => self.cage.atoms(),
+        }
+    }
+
+    /// Element symbols and positions of every atom written.
+    pub fn atoms(&self) -> Vec<(&'static str, [f64; 3])> {
+        match &self.derivative {
+            Some(d) => d
+                .molecule
+                .atoms
+                .iter()
+                .map(|a| (a.element, a.position))
+                .collect(),
+            None => self.geometry.coords.iter().map(|&c| ("C", c)).collect(),
+        }
+    }
+
+    /// Spin multiplicity written into decks and the XYZ comment (lowest spin state), from the
+    /// electron count of the cage ion or of the derivative.
     pub fn multiplicity(&self) -> u32 {
-        deck::multiplicity(self.cage.atoms(), self.charge)
+        match &self.derivative {
+            Some(d) => d.molecule.multiplicity(),
+            None => deck::multiplicity(self.cage.atoms(), self.charge),
+        }
     }
 
     /// One line saying what the structure is: ID, other-list ID, point group, charge.
     pub fn title(&self) -> String {
+        if let Some(d) = &self.derivative {
+            return format!(
+                "{} {} {} (on {}) charge {} multiplicity {}, cagerank force-field cage geometry with addends placed",
+                d.id,
+                d.molecule.formula(),
+                d.score.point_group.name(),
+                self.id,
+                self.charge,
+                self.multiplicity(),
+            );
+        }
         let mut title = self.id.to_string();
         for other in self.other_ids() {
             title.push_str(&format!(" = {other}"));
@@ -291,10 +354,15 @@ impl Entry {
 /// (values with spaces quoted; a number missing from a list is left out, not written as junk):
 /// `id=C84:IPR-23 list=IPR number=51591 ipr_number=23 point_group=D2d charge=0 ...`.
 pub fn comment_line(entry: &Entry) -> String {
-    let mut pairs = vec![
-        ("id".to_string(), entry.id.to_string()),
-        ("list".to_string(), entry.id.list.tag().to_string()),
-    ];
+    let mut pairs = vec![("id".to_string(), entry.name())];
+    if let Some(d) = &entry.derivative {
+        pairs.extend([
+            ("formula".to_string(), d.molecule.formula().replace(' ', "")),
+            ("parent".to_string(), entry.id.to_string()),
+            ("sites".to_string(), d.sites.clone()),
+        ]);
+    }
+    pairs.push(("list".to_string(), entry.id.list.tag().to_string()));
     if let Some(n) = entry.numbers.number {
         pairs.push(("number".into(), n.to_string()));
     }
@@ -302,10 +370,7 @@ pub fn comment_line(entry: &Entry) -> String {
         pairs.push(("ipr_number".into(), n.to_string()));
     }
     pairs.extend([
-        (
-            "point_group".to_string(),
-            entry.record.descriptors.point_group.name(),
-        ),
+        ("point_group".to_string(), entry.point_group()),
         ("charge".to_string(), entry.charge.to_string()),
         ("multiplicity".to_string(), entry.multiplicity().to_string()),
         ("spiral".to_string(), entry.spiral.to_string()),
@@ -333,6 +398,9 @@ pub fn comment_line(entry: &Entry) -> String {
 
 /// Scalar descriptors as (name, text) pairs, in a fixed order, for SDF data fields and CSV.
 pub fn scalar_fields(entry: &Entry) -> Vec<(String, String)> {
+    if let Some(part) = &entry.derivative {
+        return derivative::scalar_fields(entry, part);
+    }
     let d = &entry.record.descriptors;
     let g = &entry.geometry;
     let tb = entry.tight_binding.as_ref();
@@ -398,18 +466,33 @@ pub fn bond_orders(entry: &Entry) -> Vec<([u32; 2], u8)> {
 /// Writes the SDF record of one entry.
 pub fn write_sdf(w: &mut impl Write, entry: &Entry) -> io::Result<()> {
     let number = |n: Option<u64>| n.map_or(String::new(), |n| n.to_string());
-    let mut fields = vec![
-        ("id".to_string(), entry.id.to_string()),
+    let mut fields = vec![("id".to_string(), entry.name())];
+    if entry.derivative.is_some() {
+        fields.push(("parent".to_string(), entry.id.to_string()));
+    }
+    fields.extend([
         ("list".to_string(), entry.id.list.tag().to_string()),
         ("number".to_string(), number(entry.numbers.number)),
         ("ipr_number".to_string(), number(entry.numbers.ipr_number)),
         ("spiral".to_string(), entry.spiral.to_string()),
-        (
-            "point_group".to_string(),
-            entry.record.descriptors.point_group.name(),
-        ),
-    ];
+        ("point_group".to_string(), entry.point_group()),
+    ]);
     fields.extend(scalar_fields(entry));
+    if let Some(d) = &entry.derivative {
+        fields.extend(derivative::extra_fields(d));
+        fields.push(("caution".to_string(), CAUTION.to_string()));
+        return sdf::write_molecule(
+            w,
+            &sdf::MoleculeRecord {
+                name: &d.id,
+                comment:
+                    "cagerank force-field cage with addends placed; refine with quantum chemistry",
+                atoms: &d.molecule.atoms,
+                bonds: &d.molecule.bonds,
+                fields: &fields,
+            },
+        );
+    }
     fields.push(("caution".to_string(), CAUTION.to_string()));
     sdf::write_record(
         w,
@@ -538,7 +621,7 @@ pub fn write_all(
     let files: Vec<Vec<String>> = stems.iter().map(|s| file_names(s, &formats)).collect();
     // The shared files are merged in memory first, so a foreign manifest stops the export
     // before anything is written.
-    let ids: BTreeSet<String> = entries.iter().map(|e| e.id.to_string()).collect();
+    let ids: BTreeSet<String> = entries.iter().map(Entry::name).collect();
     let shortlist = if formats.contains(&Format::Sdf) {
         let mut ours = Vec::new();
         for e in entries {
@@ -660,10 +743,14 @@ fn deck_files(entry: &Entry, code: Code, options: &WriteOptions) -> Vec<deck::De
         .clone()
         .unwrap_or_else(|| code.default_method().to_string());
     let (title, stem) = (entry.title(), entry.stem());
+    let atoms = entry.atoms();
+    let elements: Vec<&str> = atoms.iter().map(|a| a.0).collect();
+    let coords: Vec<[f64; 3]> = atoms.iter().map(|a| a.1).collect();
     let job = deck::Job {
         stem: &stem,
         title: &title,
-        coords: &entry.geometry.coords,
+        coords: &coords,
+        elements: &elements,
         charge: entry.charge,
         multiplicity: entry.multiplicity(),
         method: &method,
@@ -683,7 +770,7 @@ fn extension(format: Format) -> &'static str {
 
 fn write_one(w: &mut impl Write, entry: &Entry, format: Format) -> io::Result<()> {
     match format {
-        Format::Xyz => xyz::write(w, &comment_line(entry), &entry.geometry.coords),
+        Format::Xyz => xyz::write_atoms(w, &comment_line(entry), entry.atoms().into_iter()),
         Format::Sdf => write_sdf(w, entry),
         Format::Json => json::write(w, entry),
         Format::Deck(_) => Ok(()),
@@ -694,10 +781,10 @@ fn check_sdf(entries: &[Entry], formats: &[Format]) -> Result<(), ExportError> {
     if !formats.contains(&Format::Sdf) {
         return Ok(());
     }
-    match entries.iter().find(|e| e.cage.atoms() > sdf::MAX_ATOMS) {
+    match entries.iter().find(|e| e.atom_count() > sdf::MAX_ATOMS) {
         Some(e) => Err(ExportError::TooLargeForSdf {
-            id: e.id,
-            atoms: e.cage.atoms(),
+            id: e.name(),
+            atoms: e.atom_count(),
         }),
         None => Ok(()),
     }

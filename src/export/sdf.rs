@@ -1,10 +1,13 @@
 //! SDF (MDL molfile V2000) records: a connection table with explicit single and double bonds
-//! from one Kekulé structure, so that cheminformatics toolkits see every carbon with valence 4
-//! and no radicals, followed by the descriptors as `> <name>` data fields and `$$$$`.
+//! from one Kekulé structure, so that cheminformatics toolkits see every carbon with valence 4,
+//! followed by the descriptors as `> <name>` data fields and `$$$$`. Bare cages are all carbon
+//! ([`write_record`]); derivatives ([`write_molecule`]) carry other elements, formal charges
+//! (`M  CHG`) and radical centres (`M  RAD`, doublet), as `derivative::structure` builds them.
 //!
 //! Layout follows the CTfile formats specification (MDL/BIOVIA, *CTfile Formats*). The V2000
-//! table holds at most 999 atoms. The parser reads back only what [`write_record`] writes.
+//! table holds at most 999 atoms. The parser reads back only what this module writes.
 
+use crate::derivative::structure::Atom;
 use std::io::{self, Write};
 
 /// Largest atom count a V2000 counts line can hold.
@@ -23,9 +26,44 @@ pub struct Record<'a> {
     pub fields: &'a [(String, String)],
 }
 
-/// Writes one record including the closing `$$$$` line.
+/// One SDF record of a molecule with any elements, charges and radical centres.
+pub struct MoleculeRecord<'a> {
+    pub name: &'a str,
+    pub comment: &'a str,
+    pub atoms: &'a [Atom],
+    /// Bonds as atom pairs (0-based) with order 1 or 2.
+    pub bonds: &'a [([u32; 2], u8)],
+    pub fields: &'a [(String, String)],
+}
+
+/// Writes one all-carbon record including the closing `$$$$` line.
 pub fn write_record(w: &mut impl Write, r: &Record<'_>) -> io::Result<()> {
-    if r.coords.len() > MAX_ATOMS || r.bonds.len() > MAX_ATOMS {
+    let atoms: Vec<Atom> = r
+        .coords
+        .iter()
+        .map(|&position| Atom {
+            element: "C",
+            position,
+            charge: 0,
+            radical: false,
+        })
+        .collect();
+    write_molecule(
+        w,
+        &MoleculeRecord {
+            name: r.name,
+            comment: r.comment,
+            atoms: &atoms,
+            bonds: r.bonds,
+            fields: r.fields,
+        },
+    )
+}
+
+/// Writes one record including the closing `$$$$` line, with `M  CHG` and `M  RAD` property
+/// lines (eight entries a line, as the specification allows) for charged and radical atoms.
+pub fn write_molecule(w: &mut impl Write, r: &MoleculeRecord<'_>) -> io::Result<()> {
+    if r.atoms.len() > MAX_ATOMS || r.bonds.len() > MAX_ATOMS {
         return Err(io::Error::new(
             io::ErrorKind::InvalidInput,
             format!(
@@ -40,19 +78,36 @@ pub fn write_record(w: &mut impl Write, r: &Record<'_>) -> io::Result<()> {
     writeln!(
         w,
         "{:>3}{:>3}  0  0  0  0  0  0  0  0999 V2000",
-        r.coords.len(),
+        r.atoms.len(),
         r.bonds.len()
     )?;
-    for c in r.coords {
+    for a in r.atoms {
+        let [x, y, z] = a.position;
         writeln!(
             w,
-            "{:>10.4}{:>10.4}{:>10.4} C   0  0  0  0  0  0  0  0  0  0  0  0",
-            c[0], c[1], c[2]
+            "{x:>10.4}{y:>10.4}{z:>10.4} {:<3} 0  0  0  0  0  0  0  0  0  0  0  0",
+            a.element
         )?;
     }
     for ([a, b], order) in r.bonds {
         writeln!(w, "{:>3}{:>3}{:>3}  0  0  0  0", a + 1, b + 1, order)?;
     }
+    let charges: Vec<(usize, i32)> = r
+        .atoms
+        .iter()
+        .enumerate()
+        .filter(|(_, a)| a.charge != 0)
+        .map(|(i, a)| (i, i32::from(a.charge)))
+        .collect();
+    property_lines(w, "CHG", &charges)?;
+    let radicals: Vec<(usize, i32)> = r
+        .atoms
+        .iter()
+        .enumerate()
+        .filter(|(_, a)| a.radical)
+        .map(|(i, _)| (i, 2))
+        .collect();
+    property_lines(w, "RAD", &radicals)?;
     writeln!(w, "M  END")?;
     for (name, value) in r.fields {
         writeln!(w, "> <{}>", one_line(name, 60))?;
@@ -62,6 +117,18 @@ pub fn write_record(w: &mut impl Write, r: &Record<'_>) -> io::Result<()> {
         writeln!(w)?;
     }
     writeln!(w, "$$$$")
+}
+
+/// `M  CHG` / `M  RAD` lines: count, then (atom, value) pairs, at most eight a line.
+fn property_lines(w: &mut impl Write, tag: &str, items: &[(usize, i32)]) -> io::Result<()> {
+    for chunk in items.chunks(8) {
+        write!(w, "M  {tag}{:>3}", chunk.len())?;
+        for (i, value) in chunk {
+            write!(w, " {:>3} {:>3}", i + 1, value)?;
+        }
+        writeln!(w)?;
+    }
+    Ok(())
 }
 
 /// Longest data line the CTfile specification allows.
@@ -95,13 +162,17 @@ fn one_line(text: &str, max: usize) -> String {
 #[derive(Debug, Clone, PartialEq)]
 pub struct ParsedRecord {
     pub name: String,
+    /// Element symbol of every atom, in file order.
+    pub elements: Vec<String>,
     pub coords: Vec<[f64; 3]>,
     /// (atom a, atom b, order), 0-based atoms.
     pub bonds: Vec<(u32, u32, u8)>,
+    /// Formal charges from `M  CHG` lines: (0-based atom, charge).
+    pub charges: Vec<(u32, i32)>,
     pub fields: Vec<(String, String)>,
 }
 
-/// Parses every record of a multi-structure SDF text written by [`write_record`]; `None` if the
+/// Parses every record of a multi-structure SDF text written by this module; `None` if the
 /// text is not in that form.
 pub fn parse(text: &str) -> Option<Vec<ParsedRecord>> {
     text.split("$$$$")
@@ -116,34 +187,68 @@ fn parse_record(chunk: &str) -> Option<ParsedRecord> {
     let counts = lines.get(3)?;
     let atoms: usize = counts.get(0..3)?.trim().parse().ok()?;
     let bonds: usize = counts.get(3..6)?.trim().parse().ok()?;
-    let coords = lines
+    let (elements, coords): (Vec<String>, Vec<[f64; 3]>) = lines
         .get(4..4 + atoms)?
         .iter()
         .map(|l| parse_atom(l))
-        .collect::<Option<Vec<_>>>()?;
+        .collect::<Option<Vec<_>>>()?
+        .into_iter()
+        .unzip();
     let bond_lines = lines.get(4 + atoms..4 + atoms + bonds)?;
     let bonds = bond_lines
         .iter()
         .map(|l| parse_bond(l))
         .collect::<Option<Vec<_>>>()?;
-    let rest = lines.get(4 + atoms + bonds.len()..)?;
+    let mut rest = lines.get(4 + atoms + bonds.len()..)?;
+    let mut charges = Vec::new();
+    while let Some(line) = rest
+        .first()
+        .filter(|l| l.starts_with("M  ") && **l != "M  END")
+    {
+        if let Some(items) = line.strip_prefix("M  CHG") {
+            charges.extend(parse_property(items)?);
+        }
+        rest = &rest[1..];
+    }
     if rest.first() != Some(&"M  END") {
         return None;
     }
     Some(ParsedRecord {
         name: lines[0].to_string(),
+        elements,
         coords,
         bonds,
+        charges,
         fields: parse_fields(&rest[1..]),
     })
 }
 
-fn parse_atom(line: &str) -> Option<[f64; 3]> {
-    let field = |a: usize, b: usize| line.get(a..b)?.trim().parse::<f64>().ok();
-    if line.get(31..34)?.trim() != "C" {
+/// The (atom, value) pairs of a property line after its tag: a count, then pairs.
+fn parse_property(items: &str) -> Option<Vec<(u32, i32)>> {
+    let numbers: Vec<i32> = items
+        .split_whitespace()
+        .map(|t| t.parse().ok())
+        .collect::<Option<_>>()?;
+    let (&count, pairs) = numbers.split_first()?;
+    if pairs.len() != 2 * usize::try_from(count).ok()? {
         return None;
     }
-    Some([field(0, 10)?, field(10, 20)?, field(20, 30)?])
+    pairs
+        .chunks(2)
+        .map(|p| Some((u32::try_from(p[0]).ok()?.checked_sub(1)?, p[1])))
+        .collect()
+}
+
+fn parse_atom(line: &str) -> Option<(String, [f64; 3])> {
+    let field = |a: usize, b: usize| line.get(a..b)?.trim().parse::<f64>().ok();
+    let element = line.get(31..34)?.trim();
+    if element.is_empty() || !element.bytes().all(|b| b.is_ascii_alphabetic()) {
+        return None;
+    }
+    Some((
+        element.to_string(),
+        [field(0, 10)?, field(10, 20)?, field(20, 30)?],
+    ))
 }
 
 fn parse_bond(line: &str) -> Option<(u32, u32, u8)> {

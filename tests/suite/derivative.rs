@@ -993,3 +993,672 @@ fn c60h2_on_a_bond_keeps_the_kekule_structures_with_that_bond_double() {
         assert_eq!(kekule::count(&p.cage, &removed), BigUint::from(expected));
     }
 }
+
+// ---- show, export and draw of pattern IDs (the command line end to end) ----
+
+fn temp_dir(name: &str) -> std::path::PathBuf {
+    let dir = std::env::temp_dir().join(format!("cagerank-derivint-{name}-{}", std::process::id()));
+    let _ = std::fs::remove_dir_all(&dir);
+    std::fs::create_dir_all(&dir).expect("temp dir");
+    dir
+}
+
+/// Runs the binary with the repository's catalogues (so parents are found by index) and two
+/// threads; returns exit code, stdout, stderr.
+fn run(args: &[&str]) -> (i32, String, String) {
+    let catalogue = std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join("catalogues");
+    let out = std::process::Command::new(env!("CARGO_BIN_EXE_cagerank"))
+        .args(args)
+        .env("CAGERANK_CATALOGUE", catalogue)
+        .env("RAYON_NUM_THREADS", "2")
+        .output()
+        .expect("binary runs");
+    (
+        out.status.code().unwrap_or(-1),
+        String::from_utf8_lossy(&out.stdout).into_owned(),
+        String::from_utf8_lossy(&out.stderr).into_owned(),
+    )
+}
+
+/// Atomic numbers of the elements a derivative holds (periodic table).
+fn atomic_number(element: &str) -> i64 {
+    match element {
+        "H" => 1,
+        "B" => 5,
+        "C" => 6,
+        "N" => 7,
+        "F" => 9,
+        "Cl" => 17,
+        other => panic!("unexpected element {other}"),
+    }
+}
+
+/// Standard valences of neutral atoms (common practice, no source): C 4, N 3, B 3, H F Cl 1.
+fn valence(element: &str) -> i32 {
+    match element {
+        "C" => 4,
+        "N" | "B" => 3,
+        _ => 1,
+    }
+}
+
+#[test]
+fn show_of_a_pattern_gives_sites_symmetry_pi_system_and_rank() {
+    // 1,2-C60H2 across a 6:6 bond: the isomer formed in practice (Henderson & Cahill, Science
+    // 259 (1993) 1885, from memory), point group C2v (from memory, same paper), 58 pi centres,
+    // Kekulé count 12500 x 11/25 = 5500 (Klein et al., JACS 108 (1986) 1301; 6:6 Pauling bond
+    // order 11/25, domain notes section 3), first of the 23 C60H2 isomers (Clare & Kepert 1994)
+    // in the default order.
+    let (code, out, err) = run(&["show", "C60:IPR-1+2H:5", "--json"]);
+    assert_eq!(code, 0, "{err}");
+    let v: serde_json::Value = serde_json::from_str(out.trim()).expect("one JSON object");
+    assert_eq!(v["id"], "C60:IPR-1+2H:5");
+    assert_eq!(v["formula"], "C60H2");
+    assert_eq!(v["point_group"], "C2v");
+    assert_eq!(v["kekule"], "5500");
+    assert_eq!(v["radical"], false);
+    assert_eq!(v["pi_centres"], 58);
+    assert_eq!(v["pi_electrons"], 58);
+    assert_eq!(
+        (v["rank"].as_u64(), v["rank_of"].as_u64()),
+        (Some(1), Some(23))
+    );
+    assert_eq!(v["parent_number"], 1812);
+    assert_eq!(
+        v["stabiliser"].as_u64().unwrap() * v["orbit"].as_u64().unwrap(),
+        120
+    );
+    let sites: Vec<u32> = v["sites"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(|x| x.as_u64().unwrap() as u32 - 1)
+        .collect();
+    let p = c60();
+    let e = p
+        .cage
+        .edges()
+        .iter()
+        .position(|&[a, b]| [a, b] == [sites[0], sites[1]])
+        .expect("the two H sit on one bond");
+    assert!(p.cage.edge_faces()[e]
+        .iter()
+        .all(|&f| p.cage.faces()[f as usize].len() == 6));
+    // The same scores as `derive` prints for that ID.
+    let (_, listing, _) = run(&[
+        "derive",
+        "C60:IPR-1",
+        "--add",
+        "2",
+        "--sort",
+        "id",
+        "--format",
+        "json",
+    ]);
+    let row: serde_json::Value = listing
+        .lines()
+        .map(|l| serde_json::from_str::<serde_json::Value>(l).unwrap())
+        .find(|r| r["id"] == "C60:IPR-1+2H:5")
+        .expect("derive lists it");
+    for key in [
+        "homo",
+        "lumo",
+        "gap",
+        "pi_energy",
+        "kekule",
+        "sites",
+        "orbit",
+    ] {
+        assert_eq!(v[key], row[key], "{key}");
+    }
+    // The text block: the headings and labelled rows, the caution after.
+    let (code, text, err) = run(&["show", "C60:1+2H:5", "--ipr"]);
+    assert_eq!(code, 0, "{err}");
+    for heading in [
+        "identity",
+        "symmetry",
+        "pi system (remaining graph)",
+        "electronic structure (Hückel, charge +0)",
+        "ranking (default screening order, docs/derivatives.md)",
+    ] {
+        assert!(text.lines().any(|l| l == heading), "{heading}: {text}");
+    }
+    assert!(
+        text.starts_with("C60:IPR-1+2H:5  C60H2  C2v  charge +0"),
+        "{text}"
+    );
+    assert!(text.contains("  parent                         C60:IPR-1 = C60:all-1812"));
+    assert!(text.contains("  HOMO, LUMO, gap (|beta|)"));
+    assert!(
+        text.contains("  rank in its list               1 of 23"),
+        "{text}"
+    );
+    assert!(text.trim_end().ends_with("quantum chemistry."));
+}
+
+#[test]
+fn show_of_substitution_and_bridges_names_parameters_and_bonds() {
+    // C58N2: Van-Catledge (1980) pyridine-type parameters h_N 0.51, k_CN 1.02, k_NN 1.09
+    // (domain notes section 8); HOMO and LUMO against nalgebra on the same weighted matrix.
+    let (code, out, err) = run(&["show", "C60:IPR-1+2N:5", "--json"]);
+    assert_eq!(code, 0, "{err}");
+    let v: serde_json::Value = serde_json::from_str(out.trim()).expect("JSON");
+    assert_eq!(v["formula"], "C58N2");
+    assert_eq!(
+        v["heteroatom_parameters"],
+        "h_N 0.51, k_CN 1.02, k_NN 1.09 (Van-Catledge 1980)"
+    );
+    assert_eq!(v["pi_electrons"], 62);
+    let p = c60();
+    let n: Vec<usize> = v["atoms"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(|x| x.as_u64().unwrap() as usize - 1)
+        .collect();
+    let h = |x: usize| if n.contains(&x) { 0.51 } else { 0.0 };
+    let mut m = nalgebra::DMatrix::<f64>::zeros(60, 60);
+    for x in 0..60 {
+        m[(x, x)] = h(x);
+    }
+    for &[a, b] in p.cage.edges() {
+        let (a, b) = (a as usize, b as usize);
+        let k = match (n.contains(&a), n.contains(&b)) {
+            (false, false) => 1.0,
+            (true, true) => 1.09,
+            _ => 1.02,
+        };
+        m[(a, b)] = k;
+        m[(b, a)] = k;
+    }
+    let mut x: Vec<f64> = m.symmetric_eigenvalues().iter().copied().collect();
+    x.sort_by(|a, b| b.total_cmp(a));
+    assert!((v["homo"].as_f64().unwrap() - x[30]).abs() < 1e-9);
+    assert!((v["lumo"].as_f64().unwrap() - x[31]).abs() < 1e-9);
+    // trans-1 bis-methano C60 across 6:6 bonds: D2h (Hirsch, Lamparth & Karfunkel 1994, from
+    // memory), sites are bonds printed with their atoms.
+    let (code, text, err) = run(&["show", "C60:IPR-1+2CH2@66:8"]);
+    assert_eq!(code, 0, "{err}");
+    assert!(
+        text.starts_with("C60:IPR-1+2CH2@66:8  C62H4  D2h"),
+        "{text}"
+    );
+    assert!(text.contains("  sites (bonds: atoms)"), "{text}");
+    assert!(text.contains("2 6:6, 0 6:5, 0 5:5 bonds"), "{text}");
+    // Every kind shows: formula counted by hand (C60 plus K addends, C60 plus K CH2 with 2K H,
+    // 60 - K carbons and K heteroatoms) and the sites the pattern's list gives.
+    for (id, _, formula) in EXPORTS {
+        let (code, out, err) = run(&["show", id, "--json"]);
+        assert_eq!(code, 0, "{id}: {err}");
+        let v: serde_json::Value = serde_json::from_str(out.trim()).expect("JSON");
+        assert_eq!(v["id"], id);
+        assert_eq!(v["formula"], formula, "{id}");
+        let (_, found) = find_pattern(&p, &PatternId::parse(id).unwrap()).unwrap();
+        let sites: Vec<u64> = found.sites.iter().map(|&s| u64::from(s) + 1).collect();
+        assert_eq!(v["sites"], serde_json::json!(sites), "{id}");
+    }
+    // C60H6 has 418470 patterns (Burnside, checked against listing above): too many to rank
+    // for one `show`, which says so instead of scoring them all.
+    let (code, text, err) = run(&["show", "C60:IPR-1+6H:1"]);
+    assert_eq!(code, 0, "{err}");
+    assert!(
+        text.contains("  rank in its list               not computed: the list has more than 5000"),
+        "{text}"
+    );
+}
+
+/// One exported derivative to check: pattern ID, file stem, formula, atom addend to ignore
+/// when identifying (None: drop the atoms after the cage, or read heteroatoms as carbon).
+const EXPORTS: [(&str, &str, &str); 6] = [
+    ("C60:IPR-1+2H:5", "C60_IPR-1+2H-5", "C60H2"),
+    ("C60:IPR-1+4F:217", "C60_IPR-1+4F-217", "C60F4"),
+    ("C60:IPR-1+2Cl:3", "C60_IPR-1+2Cl-3", "C60Cl2"),
+    ("C60:IPR-1+2CH2@66:8", "C60_IPR-1+2CH2_66-8", "C62H4"),
+    ("C60:IPR-1+2N:5", "C60_IPR-1+2N-5", "C58N2"),
+    ("C60:IPR-1+2B:7", "C60_IPR-1+2B-7", "C58B2"),
+];
+
+/// Typical bond lengths, Å (Allen et al., J. Chem. Soc. Perkin Trans. 2 (1987) S1, from
+/// memory): the addend bonds are placed at these; cage bonds come from the force field and
+/// must lie near C60's 1.39 and 1.45 Å (Hedberg et al., Science 254 (1991) 410).
+fn bond_length_ok(a: &str, b: &str, d: f64) -> bool {
+    let mut pair = [a, b];
+    pair.sort_unstable();
+    match pair {
+        ["C", "H"] => (d - 1.09).abs() < 0.01,
+        ["C", "F"] => (d - 1.38).abs() < 0.01,
+        ["C", "Cl"] => (d - 1.79).abs() < 0.01,
+        ["C", "C"] | ["B", "C"] | ["C", "N"] | ["N", "N"] | ["B", "B"] => (1.35..1.52).contains(&d),
+        _ => false,
+    }
+}
+
+#[test]
+fn export_of_patterns_writes_valid_molecules_that_identify_as_the_parent() {
+    use cagerank::export::{sdf, xyz};
+    use cagerank::identify::{self, parse::Format};
+    let dir = temp_dir("export");
+    let ids: Vec<&str> = EXPORTS.iter().map(|e| e.0).collect();
+    let ids = ids.join(",") + ",C60:IPR-1";
+    let out_dir = dir.to_str().unwrap();
+    let (code, stdout, err) = run(&[
+        "export",
+        "--ids",
+        &ids,
+        "--format",
+        "xyz,sdf,json,orca,cp2k",
+        "--out",
+        out_dir,
+    ]);
+    assert_eq!(code, 0, "{err}");
+    assert!(stdout.contains("C60_IPR-1+2CH2_66-8.sdf"), "{stdout}");
+    let manifest = std::fs::read_to_string(dir.join("manifest.csv")).unwrap();
+    let rows: Vec<&str> = manifest.lines().collect();
+    assert_eq!(rows.len(), 1 + EXPORTS.len() + 1, "{manifest}");
+    let c60_spiral = c60().spiral;
+    for (id, stem, formula) in EXPORTS {
+        // The manifest row is named by the pattern ID and lists the files.
+        let row = rows
+            .iter()
+            .find(|r| r.starts_with(&format!("{id},IPR,1812,1,")))
+            .unwrap_or_else(|| panic!("row for {id}: {manifest}"));
+        assert!(
+            row.ends_with(&format!(
+                "{stem}.xyz {stem}.sdf {stem}.json {stem}.orca.inp {stem}.cp2k.inp"
+            )),
+            "{row}"
+        );
+        // SDF: our reader gets elements, bonds and charges back; valences are satisfied and
+        // bond lengths sane.
+        let text = std::fs::read_to_string(dir.join(format!("{stem}.sdf"))).unwrap();
+        let records = sdf::parse(&text).expect("our SDF reader reads it");
+        let r = &records[0];
+        assert_eq!(r.name, id);
+        let mut orders = vec![0i32; r.elements.len()];
+        for &(a, b, o) in &r.bonds {
+            orders[a as usize] += i32::from(o);
+            orders[b as usize] += i32::from(o);
+            let d = dist(r.coords[a as usize], r.coords[b as usize]);
+            let (ea, eb) = (&r.elements[a as usize], &r.elements[b as usize]);
+            assert!(bond_length_ok(ea, eb, d), "{id}: {ea}-{eb} {d:.3} Å");
+        }
+        for (i, e) in r.elements.iter().enumerate() {
+            let charge = r
+                .charges
+                .iter()
+                .find(|c| c.0 == i as u32)
+                .map_or(0, |c| c.1);
+            assert_eq!(orders[i] + charge.abs(), valence(e), "{id}: atom {i} {e}");
+        }
+        let field = |name: &str| r.fields.iter().find(|f| f.0 == name).map(|f| f.1.clone());
+        assert_eq!(field("formula").as_deref(), Some(formula));
+        assert_eq!(field("parent").as_deref(), Some("C60:IPR-1"));
+        // XYZ: the same atoms in the same order.
+        let x = xyz::parse(&std::fs::read_to_string(dir.join(format!("{stem}.xyz"))).unwrap())
+            .expect("our XYZ reader reads it");
+        assert_eq!(x.elements, r.elements);
+        for (a, b) in x.coords.iter().zip(&r.coords) {
+            assert!(dist(*a, *b) < 1e-3);
+        }
+        assert!(
+            x.comment
+                .starts_with(&format!("id={id} formula={formula} parent=C60:IPR-1")),
+            "{}",
+            x.comment
+        );
+        // Decks: charge 0 and the multiplicity of the electron count (sum of atomic numbers).
+        let electrons: i64 = r.elements.iter().map(|e| atomic_number(e)).sum();
+        let multiplicity = if electrons % 2 == 0 { 1 } else { 2 };
+        let orca = std::fs::read_to_string(dir.join(format!("{stem}.orca.inp"))).unwrap();
+        assert!(
+            orca.contains(&format!("* xyz 0 {multiplicity}\n")),
+            "{orca}"
+        );
+        let atom_lines = orca
+            .lines()
+            .filter(|l| l.starts_with("  ") && l.split_whitespace().count() == 4)
+            .count();
+        assert_eq!(atom_lines, r.elements.len());
+        let json: serde_json::Value = serde_json::from_str(
+            &std::fs::read_to_string(dir.join(format!("{stem}.json"))).unwrap(),
+        )
+        .unwrap();
+        assert_eq!(json["electrons"].as_i64(), Some(electrons));
+        assert_eq!(json["multiplicity"].as_u64(), Some(multiplicity));
+        // identify recovers C60-Ih: atom addends ignored by element, bridge atoms (written after
+        // the cage) dropped, heteroatoms read as the carbons they replace.
+        let mut structure =
+            identify::read(text.as_bytes(), Some(Format::Sdf)).expect("reads")[0].clone();
+        let mut options = identify::Options::default();
+        match formula {
+            "C62H4" => structure.atoms.truncate(60),
+            "C58N2" | "C58B2" => structure
+                .atoms
+                .iter_mut()
+                .for_each(|a| a.element = "C".into()),
+            _ => options.ignore = vec![structure.atoms[60].element.clone()],
+        }
+        let found = identify::identify(&structure, &options).expect("a cage");
+        assert_eq!(found.canonical.expect("spiral").spiral, c60_spiral, "{id}");
+    }
+    // CP2K: each element its own kind, the pseudopotential's valence matching the element.
+    let cp2k = std::fs::read_to_string(dir.join("C60_IPR-1+2Cl-3.cp2k.inp")).unwrap();
+    assert!(
+        cp2k.contains("&KIND Cl\n      BASIS_SET ${BASIS}\n      POTENTIAL GTH-PBE-q7\n"),
+        "{cp2k}"
+    );
+    let cp2k = std::fs::read_to_string(dir.join("C60_IPR-1+2H-5.cp2k.inp")).unwrap();
+    assert!(cp2k.contains("POTENTIAL GTH-PBE-q1"), "{cp2k}");
+    // The identify command itself, with --ignore-elements H on the exported file.
+    let sdf_path = dir.join("C60_IPR-1+2H-5.sdf");
+    let (code, out, err) = run(&[
+        "identify",
+        sdf_path.to_str().unwrap(),
+        "--ignore-elements",
+        "H",
+        "--json",
+    ]);
+    assert_eq!(code, 0, "{err}");
+    let v: serde_json::Value = serde_json::from_str(out.lines().next().unwrap()).unwrap();
+    assert_eq!(v["ignored_atoms"], 2);
+    assert!(
+        v["ids"]
+            .as_array()
+            .unwrap()
+            .iter()
+            .any(|i| i == "C60:IPR-1"),
+        "{out}"
+    );
+    std::fs::remove_dir_all(&dir).unwrap();
+}
+
+/// The fields of one CSV line (RFC 4180 quoting: the spiral column holds commas).
+fn csv_fields(line: &str) -> Vec<String> {
+    let mut fields = vec![String::new()];
+    let mut quoted = false;
+    let mut chars = line.chars().peekable();
+    while let Some(c) = chars.next() {
+        match c {
+            '"' if quoted && chars.peek() == Some(&'"') => {
+                chars.next();
+                fields.last_mut().unwrap().push('"');
+            }
+            '"' => quoted = !quoted,
+            ',' if !quoted => fields.push(String::new()),
+            _ => fields.last_mut().unwrap().push(c),
+        }
+    }
+    fields
+}
+
+#[test]
+fn export_of_a_charged_pattern_and_the_same_bytes_on_one_and_two_threads() {
+    // C59N+ (azafullerenium): closed shell, 59 x 6 + 7 - 1 = 360 electrons, a singlet; the
+    // positive charge sits on a carbon (Hummelen et al., Science 269 (1995) 1554, from memory,
+    // for C59N+ as a closed-shell cation).
+    let one = temp_dir("charged-1");
+    let two = temp_dir("charged-2");
+    for (dir, threads) in [(&one, "1"), (&two, "2")] {
+        let out = std::process::Command::new(env!("CARGO_BIN_EXE_cagerank"))
+            .args([
+                "export",
+                "--ids",
+                "C60:IPR-1+1N:1",
+                "--charge",
+                "1",
+                "--format",
+                "sdf,gaussian",
+                "--out",
+                dir.to_str().unwrap(),
+            ])
+            .env("RAYON_NUM_THREADS", threads)
+            .output()
+            .unwrap();
+        assert!(
+            out.status.success(),
+            "{}",
+            String::from_utf8_lossy(&out.stderr)
+        );
+    }
+    for name in ["C60_IPR-1+1N-1.sdf", "C60_IPR-1+1N-1.gjf", "manifest.csv"] {
+        assert_eq!(
+            std::fs::read(one.join(name)).unwrap(),
+            std::fs::read(two.join(name)).unwrap(),
+            "{name}"
+        );
+    }
+    let text = std::fs::read_to_string(one.join("C60_IPR-1+1N-1.sdf")).unwrap();
+    let r = &cagerank::export::sdf::parse(&text).unwrap()[0];
+    assert_eq!(r.charges.len(), 1);
+    assert_eq!(r.charges[0].1, 1);
+    assert_eq!(r.elements[r.charges[0].0 as usize], "C");
+    let gjf = std::fs::read_to_string(one.join("C60_IPR-1+1N-1.gjf")).unwrap();
+    assert!(gjf.lines().any(|l| l == "1 1"), "{gjf}");
+    // The manifest calls it closed-shell although its 59 carbons have no Kekulé structure.
+    let manifest = std::fs::read_to_string(one.join("manifest.csv")).unwrap();
+    let header = csv_fields(manifest.lines().next().unwrap());
+    let row = csv_fields(manifest.lines().nth(1).unwrap());
+    let column = |name: &str| row[header.iter().position(|h| h == name).unwrap()].clone();
+    assert_eq!(column("id"), "C60:IPR-1+1N:1");
+    assert_eq!(column("shell"), "closed", "{manifest}");
+    std::fs::remove_dir_all(&one).unwrap();
+    std::fs::remove_dir_all(&two).unwrap();
+}
+
+#[test]
+fn draw_of_patterns_marks_their_sites_with_a_legend() {
+    let dir = temp_dir("draw");
+    for (id, legend, bonds) in [
+        ("C60:IPR-1+2H:5", "2 H addends", false),
+        ("C60:IPR-1+4F:217", "4 F addends", false),
+        ("C60:IPR-1+2Cl:3", "2 Cl addends", false),
+        ("C60:IPR-1+2CH2@66:8", "2 CH2 bridges", true),
+        ("C60:IPR-1+2N:5", "2 N in place of C", false),
+        ("C60:IPR-1+2B:7", "2 B in place of C", false),
+        ("C60:IPR-1+1H:1", "1 H addend", false),
+    ] {
+        let path = dir.join("x.svg");
+        let (code, _, err) = run(&["draw", id, "-o", path.to_str().unwrap()]);
+        assert_eq!(code, 0, "{id}: {err}");
+        let svg = std::fs::read_to_string(&path).unwrap();
+        assert!(svg.contains(&format!("<title>{id}  ")), "{id}");
+        assert!(svg.contains(&format!(">{legend}</text>")), "{id}: legend");
+        // The marks are the pattern's own sites, as derive lists them (1-based atoms, 0-based
+        // bond indices in the SVG's data-edge like the bond lines).
+        let p = c60();
+        let pattern = PatternId::parse(id).unwrap();
+        let (_, found) = find_pattern(&p, &pattern).unwrap();
+        let attrs = |class: &str, key: &str| -> Vec<u32> {
+            svg.lines()
+                .filter(|l| l.contains(&format!("class=\"{class}\"")))
+                .map(|l| {
+                    let start = l.find(&format!("{key}=\"")).unwrap() + key.len() + 2;
+                    l[start..start + l[start..].find('"').unwrap()]
+                        .parse()
+                        .unwrap()
+                })
+                .collect()
+        };
+        if bonds {
+            assert_eq!(attrs("site-bond", "data-edge"), found.sites);
+            let ends: Vec<u32> = found
+                .sites
+                .iter()
+                .flat_map(|&e| p.cage.edges()[e as usize])
+                .map(|a| a + 1)
+                .collect();
+            let mut marked = attrs("site", "data-atom");
+            marked.sort_unstable();
+            let mut ends = ends;
+            ends.sort_unstable();
+            assert_eq!(marked, ends);
+        } else {
+            let want: Vec<u32> = found.sites.iter().map(|s| s + 1).collect();
+            assert_eq!(attrs("site", "data-atom"), want, "{id}");
+        }
+    }
+    std::fs::remove_dir_all(&dir).unwrap();
+}
+
+#[test]
+fn pattern_ids_that_cannot_be_shown_exported_or_drawn_get_one_line_and_exit_2() {
+    let dir = temp_dir("bad");
+    let out = dir.join("x.svg");
+    let out = out.to_str().unwrap();
+    let d = dir.to_str().unwrap();
+    for args in [
+        vec!["show", "C60:IPR-1+2H:99"],
+        vec!["show", "C60:IPR-1+2Q:1"],
+        vec!["show", "C60:IPR-1+1H:1"],
+        vec![
+            "show",
+            "C60:IPR-1+2H:5",
+            "--spiral",
+            "1,7,9,11,13,15,18,20,22,24,26,32",
+        ],
+        vec!["show", "C60:IPR-9+2H:1"],
+        vec!["export", "--ids", "C60:IPR-1+1N:1", "--out", d],
+        vec![
+            "export",
+            "--ids",
+            "C60:IPR-1+2H:5",
+            "--atoms",
+            "70",
+            "--out",
+            d,
+        ],
+        vec!["draw", "C60:IPR-1+2H:24", "-o", out],
+        vec!["draw", "C60:IPR-1+0H:1", "-o", out],
+    ] {
+        let (code, stdout, err) = run(&args);
+        assert_eq!(code, 2, "{args:?}: {err}");
+        assert!(stdout.is_empty(), "{args:?}: {stdout}");
+        assert_eq!(err.trim().lines().count(), 1, "{args:?}: {err}");
+    }
+    assert!(!dir.join("x.svg").exists());
+    assert!(!dir.join("manifest.csv").exists());
+    std::fs::remove_dir_all(&dir).unwrap();
+}
+
+#[test]
+fn show_and_export_of_radical_patterns_flag_them_and_rank_them_last() {
+    // C20H4: 58 patterns, 5 of them without a Kekulé structure (scripts/check_derivatives.out,
+    // existence checked there with networkx's maximum matching). Those are radicals; the default
+    // order puts them after the 53 others.
+    let (code, listing, err) = run(&[
+        "derive",
+        "C20:all-1",
+        "--add",
+        "4",
+        "--sort",
+        "id",
+        "--format",
+        "json",
+    ]);
+    assert_eq!(code, 0, "{err}");
+    let rows: Vec<serde_json::Value> = listing
+        .lines()
+        .map(|l| serde_json::from_str(l).unwrap())
+        .collect();
+    assert_eq!(rows.len(), 58);
+    let radicals: Vec<String> = rows
+        .iter()
+        .filter(|r| r["radical"] == true)
+        .map(|r| r["id"].as_str().unwrap().to_string())
+        .collect();
+    assert_eq!(radicals.len(), 5);
+    for id in &radicals {
+        let (code, out, err) = run(&["show", id, "--json"]);
+        assert_eq!(code, 0, "{id}: {err}");
+        let v: serde_json::Value = serde_json::from_str(out.trim()).unwrap();
+        assert_eq!(v["radical"], true, "{id}");
+        assert_eq!(v["kekule"], "0", "{id}");
+        assert_eq!(v["rank_of"], 58);
+        assert!(v["rank"].as_u64().unwrap() > 53, "{id}: {v}");
+    }
+    let (code, text, err) = run(&["show", &radicals[0]]);
+    assert_eq!(code, 0, "{err}");
+    assert!(
+        text.contains("  radical                        yes: no Kekulé structure"),
+        "{text}"
+    );
+    // Exported, its unpaired centres are `M  RAD` doublets (value 2) on carbons, and every
+    // carbon's bond orders plus its unpaired electron make four.
+    let dir = temp_dir("radical");
+    let (code, _, err) = run(&[
+        "export",
+        "--ids",
+        &radicals[0],
+        "--format",
+        "sdf",
+        "--out",
+        dir.to_str().unwrap(),
+    ]);
+    assert_eq!(code, 0, "{err}");
+    let stem = PatternId::parse(&radicals[0]).unwrap().file_stem();
+    let text = std::fs::read_to_string(dir.join(format!("{stem}.sdf"))).unwrap();
+    let r = &cagerank::export::sdf::parse(&text).unwrap()[0];
+    let mut unpaired = vec![0i32; r.elements.len()];
+    for line in text.lines().filter(|l| l.starts_with("M  RAD")) {
+        let numbers: Vec<usize> = line[6..]
+            .split_whitespace()
+            .map(|t| t.parse().unwrap())
+            .collect();
+        for pair in numbers[1..].chunks(2) {
+            assert_eq!(pair[1], 2, "doublet: {line}");
+            unpaired[pair[0] - 1] = 1;
+        }
+    }
+    assert!(unpaired.iter().sum::<i32>() >= 2, "{text}");
+    let mut orders = vec![0i32; r.elements.len()];
+    for &(a, b, o) in &r.bonds {
+        orders[a as usize] += i32::from(o);
+        orders[b as usize] += i32::from(o);
+    }
+    for (i, e) in r.elements.iter().enumerate() {
+        assert_eq!(orders[i] + unpaired[i], valence(e), "atom {i} {e}");
+    }
+    let manifest = std::fs::read_to_string(dir.join("manifest.csv")).unwrap();
+    let header = csv_fields(manifest.lines().next().unwrap());
+    let row = csv_fields(manifest.lines().nth(1).unwrap());
+    let shell = header.iter().position(|h| h == "shell").unwrap();
+    assert_eq!(row[shell], "radical");
+    std::fs::remove_dir_all(&dir).unwrap();
+}
+
+#[test]
+fn nth_pattern_walks_alone_to_the_same_pattern_as_the_parallel_listing() {
+    // `find_pattern` looks a pattern up by a sequential walk that stops at it; the listing runs
+    // in parallel windows. Both must number the patterns the same way, with the same stabiliser.
+    let p = c60();
+    for (kind, k) in [
+        (Kind::Addend(Addend::H), 3),
+        (Kind::Bridge(BondFilter::Any), 2),
+        (Kind::Bridge(BondFilter::HexHex), 3),
+    ] {
+        let s = search(&p, kind, k);
+        let all = listed(&s);
+        for (i, (sites, stabiliser)) in all.iter().enumerate() {
+            let f = s.nth(i as u64 + 1).expect("within the list");
+            assert_eq!(
+                (&f.sites, &f.stabiliser),
+                (sites, stabiliser),
+                "{kind:?} {i}"
+            );
+        }
+        assert_eq!(s.nth(all.len() as u64 + 1), Err(all.len() as u64));
+    }
+}
+
+#[test]
+fn first_pattern_of_a_long_list_is_shown_without_listing_it() {
+    // The first pattern of K addends is atoms 1..K: the smallest K-set of all is its own
+    // smallest image, so it is canonical and comes first (docs/derivatives.md, canonical form).
+    // C60H8 has 21330558 patterns (`derive --count-only`); showing number 1 must not list them
+    // (it took minutes when the lookup went through the parallel listing).
+    let (code, out, err) = run(&["show", "C60:IPR-1+8H:1", "--json"]);
+    assert_eq!(code, 0, "{err}");
+    let v: serde_json::Value = serde_json::from_str(out.trim()).unwrap();
+    assert_eq!(v["sites"], serde_json::json!([1, 2, 3, 4, 5, 6, 7, 8]));
+    assert_eq!(v["rank"], serde_json::Value::Null);
+}

@@ -378,3 +378,75 @@ fn command_line_writes_the_format_the_extension_asks_for() {
     );
     std::fs::remove_dir_all(&dir).unwrap();
 }
+
+#[test]
+fn marked_sites_are_drawn_once_each_without_disturbing_the_drawing() {
+    // A derivative's sites on its parent: one dot per marked atom, one stroke per marked bond,
+    // drawn at the atoms' and bonds' own positions; the bonds still never cross and the
+    // document stays well-formed.
+    let c60 = cage(60, &C60);
+    let autos = canonical_spiral(&c60).unwrap().automorphisms;
+    let marks = draw::Marks {
+        atoms: vec![0, 8],
+        bonds: vec![3],
+        legend: "2 H addends & <more>".to_string(),
+    };
+    let mut out = Vec::new();
+    draw::schlegel_svg_marked(
+        &mut out,
+        &c60,
+        &autos,
+        "C60:IPR-1+2H:5",
+        draw::Options {
+            labels: true,
+            ..draw::Options::default()
+        },
+        Some(&marks),
+    )
+    .unwrap();
+    let svg = String::from_utf8(out).unwrap();
+    check_well_formed(&svg);
+    let segments = lines(&svg);
+    assert_eq!(segments.len(), c60.edges().len());
+    for i in 0..segments.len() {
+        for j in i + 1..segments.len() {
+            assert!(!segments_cross(segments[i], segments[j]));
+        }
+    }
+    let dots: Vec<&str> = svg
+        .lines()
+        .filter(|l| l.starts_with("<circle class=\"site\""))
+        .collect();
+    assert_eq!(dots.len(), 2);
+    let outer = schlegel::choose_outer(&c60, &autos, OuterFace::Auto).unwrap();
+    let points = schlegel::embed(&c60, outer);
+    // Screen position of atom v: the same affine map for dots and bond ends, so a dot sits on
+    // the end of every bond of its atom.
+    for (dot, v) in dots.iter().zip([0usize, 8]) {
+        assert_eq!(attr(dot, "data-atom") as usize, v + 1);
+        let (x, y) = (attr(dot, "cx"), attr(dot, "cy"));
+        let e = c60
+            .edges()
+            .iter()
+            .position(|&[a, b]| a as usize == v || b as usize == v)
+            .unwrap();
+        let s = segments[e];
+        let at_end = |px: f64, py: f64| (px - x).abs() < 0.02 && (py - y).abs() < 0.02;
+        assert!(
+            at_end(s[0], s[1]) || at_end(s[2], s[3]),
+            "dot {v} off its bonds"
+        );
+        assert!(points[v][0].is_finite());
+    }
+    let strokes: Vec<&str> = svg
+        .lines()
+        .filter(|l| l.starts_with("<path class=\"site-bond\""))
+        .collect();
+    assert_eq!(strokes.len(), 1);
+    let [x1, y1, x2, y2] = segments[3];
+    assert!(strokes[0].contains(&format!("d=\"M{x1:.2},{y1:.2} L{x2:.2},{y2:.2}\"")));
+    assert!(svg.contains(">2 H addends &amp; &lt;more&gt;</text>"));
+    // Unmarked drawings have none of it.
+    let plain = svg_of(&c60, draw::Options::default());
+    assert!(!plain.contains("class=\"site") && !plain.contains("site-legend"));
+}

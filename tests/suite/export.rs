@@ -387,6 +387,7 @@ fn job<'a>(coords: &'a [[f64; 3]], charge: i32, method: &'a str) -> deck::Job<'a
         stem: "C60_all-1812",
         title: "C60:all-1812 Ih",
         coords,
+        elements: &[],
         charge,
         multiplicity: deck::multiplicity(60, charge),
         method,
@@ -663,4 +664,102 @@ fn command_line_writes_decks_with_the_users_method() {
         assert!(stdout.contains(name), "{stdout}");
     }
     std::fs::remove_dir_all(&dir).unwrap();
+}
+
+/// 1,2-C60H2 (pattern 5 of C60:IPR-1+2H, across a 6:6 bond) ready to export.
+fn c60h2() -> Entry {
+    use cagerank::derivative::{named::Named, Parent, PatternId};
+    let spiral = Spiral::from_pentagon_indices(60, &C60).unwrap();
+    let parent = Parent::new("C60:IPR-1", &spiral).unwrap();
+    let named = Named::new(parent, &PatternId::parse("C60:IPR-1+2H:5").unwrap(), 0).unwrap();
+    let id = IsomerId::parse("C60:IPR-1", None).unwrap();
+    export::derivative::prepare(id, numbers(1812, Some(1)), &named).unwrap()
+}
+
+#[test]
+fn derivatives_share_the_manifest_and_shortlist_with_cages() {
+    // One directory, one manifest header: the derivative's row sits under the same columns as
+    // the cages' (so the file stays one table for pandas), named by its pattern ID, and a later
+    // export of the cage alone keeps the derivative's row and record.
+    let dir = temp_dir("derivative");
+    let formats = [Format::Xyz, Format::Sdf];
+    let h2 = c60h2();
+    assert_eq!(h2.stem(), "C60_IPR-1+2H-5");
+    assert_eq!(h2.atom_count(), 62);
+    export::write_all(&[h2, c70()], &formats, &dir, &WriteOptions::default()).unwrap();
+    let options = WriteOptions {
+        overwrite: true,
+        method: None,
+    };
+    export::write_all(&[c70()], &formats, &dir, &options).unwrap();
+    let manifest = std::fs::read_to_string(dir.join("manifest.csv")).unwrap();
+    let rows: Vec<Vec<String>> = manifest.lines().map(csv_fields).collect();
+    assert_eq!(rows.len(), 3, "{manifest}");
+    assert!(rows.iter().all(|r| r.len() == rows[0].len()));
+    let h2_row = rows
+        .iter()
+        .find(|r| r[0] == "C60:IPR-1+2H:5")
+        .expect("derivative row kept");
+    let column = |name: &str| rows[0].iter().position(|h| h == name).unwrap();
+    assert_eq!(h2_row[column("atoms")], "62");
+    // C2v: from memory, Henderson & Cahill, Science 259 (1993) 1885.
+    assert_eq!(h2_row[column("point_group")], "C2v");
+    assert_eq!(h2_row[column("kekule")], "5500");
+    assert_eq!(
+        h2_row[column("files")],
+        "C60_IPR-1+2H-5.xyz C60_IPR-1+2H-5.sdf"
+    );
+    let shortlist = std::fs::read_to_string(dir.join("shortlist.sdf")).unwrap();
+    let records = sdf::parse(&shortlist).unwrap();
+    let names: Vec<&str> = records.iter().map(|r| r.name.as_str()).collect();
+    assert_eq!(names, ["C60:IPR-1+2H:5", "C70:IPR-1"]);
+    assert_eq!(records[0].elements.iter().filter(|e| *e == "H").count(), 2);
+    std::fs::remove_dir_all(&dir).unwrap();
+}
+
+#[test]
+fn sdf_charges_and_radicals_round_trip_eight_to_a_line() {
+    // CTfile formats: `M  CHG` and `M  RAD` lines hold at most eight (atom, value) pairs; more
+    // take further lines. Ten charged atoms and one radical read back as written.
+    use cagerank::derivative::structure::Atom;
+    let atoms: Vec<Atom> = (0..12)
+        .map(|i| Atom {
+            element: if i == 11 { "N" } else { "C" },
+            position: [i as f64, 0.0, 0.0],
+            charge: if i < 10 {
+                if i % 2 == 0 {
+                    1
+                } else {
+                    -1
+                }
+            } else {
+                0
+            },
+            radical: i == 10,
+        })
+        .collect();
+    let mut out = Vec::new();
+    sdf::write_molecule(
+        &mut out,
+        &sdf::MoleculeRecord {
+            name: "test",
+            comment: "",
+            atoms: &atoms,
+            bonds: &[([0, 1], 2)],
+            fields: &[("kind".to_string(), "N".to_string())],
+        },
+    )
+    .unwrap();
+    let text = String::from_utf8(out).unwrap();
+    assert_eq!(text.lines().filter(|l| l.starts_with("M  CHG")).count(), 2);
+    assert!(text.contains("M  CHG  8   1   1   2  -1"), "{text}");
+    assert!(text.contains("M  RAD  1  11   2"), "{text}");
+    let r = &sdf::parse(&text).unwrap()[0];
+    let charges: Vec<(u32, i32)> = (0..10)
+        .map(|i| (i, if i % 2 == 0 { 1 } else { -1 }))
+        .collect();
+    assert_eq!(r.charges, charges);
+    assert_eq!(r.elements[11], "N");
+    assert_eq!(r.bonds, [(0, 1, 2)]);
+    assert_eq!(r.fields, [("kind".to_string(), "N".to_string())]);
 }
