@@ -278,7 +278,8 @@ pub struct Outcome {
     pub reused: usize,
 }
 
-/// Stage 2: relaxes every candidate not yet stored, `threads` at a time (0: rayon's default),
+/// Stage 2: relaxes every candidate not yet stored, `threads` at a time (0: one per core; more
+/// than the cores are capped, as in `enumerate`),
 /// calling `progress(done, total)` after each. The caller holds the catalogue lock.
 pub fn relax_candidates(
     dir: &Path,
@@ -296,7 +297,7 @@ pub fn relax_candidates(
     let total = todo.len();
     progress(0, total);
     let pool = rayon::ThreadPoolBuilder::new()
-        .num_threads(threads)
+        .num_threads(crate::enumerate::worker_threads(threads))
         .build()
         .map_err(|e| ScreenError::Charge(format!("cannot start worker threads: {e}")))?;
     let (send, receive) = mpsc::channel::<Result<EnergyRecord, ScreenError>>();

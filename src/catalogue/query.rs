@@ -334,7 +334,7 @@ fn choose_file(dir: &Path, q: &Query) -> Result<(DataFile, bool), CatalogueError
 fn nearest_fullerene_size(atoms: u32) -> u32 {
     match atoms {
         0..=21 => 20,
-        22 => 24,
+        22 | 23 => 24,
         n => n.min(100_000) - n.min(100_000) % 2,
     }
 }

@@ -395,7 +395,12 @@ fn count_text(args: &Args, parent: &Parent, search: &Search, count: &BigUint) ->
             search.group.order()
         ),
         FormatArg::Table => format!(
-            "{what}: {count} patterns (symmetry group of order {})",
+            "{what}: {count} {} (symmetry group of order {})",
+            if *count == BigUint::from(1u8) {
+                "pattern"
+            } else {
+                "patterns"
+            },
             search.group.order()
         ),
     }

@@ -246,6 +246,9 @@ fn bytes_text(bytes: f64) -> String {
 }
 
 fn run_size(out: &mut Out, args: &Args, atoms: u64) -> Result<(), CliError> {
+    if !args.count_only {
+        score::check_size(atoms as usize).map_err(|e| CliError::usage(e.to_string()))?;
+    }
     let spec = spec_for(args, atoms)?;
     if !args.count_only {
         huckel::occupation(atoms as usize, args.charge.charge)

@@ -129,6 +129,13 @@ fn spec_of(args: &Args) -> Result<ScreenSpec, CliError> {
 
 pub fn run(args: Args) -> Result<(), CliError> {
     let spec = spec_of(&args)?;
+    let cap = cagerank::enumerate::max_threads();
+    if args.threads > cap && !args.quiet {
+        eprintln!(
+            "cagerank: note: --threads {} capped to {cap}, the cores this machine offers; more threads would only share them",
+            args.threads
+        );
+    }
     let dir = catalogue_dir(&args.catalogue);
     let candidates = screen::select(&dir, &spec).map_err(screen_error)?;
     let _lock = Lock::acquire(&dir).map_err(catalogue_error)?;

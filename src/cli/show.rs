@@ -63,6 +63,8 @@ pub fn run(args: Args) -> Result<(), CliError> {
         return show_pattern(&args, &dir);
     }
     let (atoms, id) = parse_id(&args.id, args.ipr)?;
+    score::check_size(usize::try_from(atoms).unwrap_or(usize::MAX))
+        .map_err(|e| CliError::usage(e.to_string()))?;
     let (spiral, number, ipr_number) = match (&args.spiral, id) {
         (Some(list), None) => from_spiral(atoms, list, &args)?,
         (None, Some(id)) => from_id(id, &dir, &args)?,
@@ -78,7 +80,7 @@ pub fn run(args: Args) -> Result<(), CliError> {
     };
     let charge = args.charge.charge;
     let record = score::full_record(&spiral, number, ipr_number, charge).map_err(|e| match e {
-        ScoreError::Charge(_) => CliError::usage(e.to_string()),
+        ScoreError::Charge(_) | ScoreError::TooLarge { .. } => CliError::usage(e.to_string()),
         _ => CliError::failed(e.to_string()),
     })?;
     let stored = stored_energy(&dir, &record, charge)?;

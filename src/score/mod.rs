@@ -76,7 +76,15 @@ pub enum ScoreError {
     Mismatch { cage: usize, automorphisms: usize },
     /// The cage has no face spiral, so no canonical form or automorphisms were found.
     NoSpiral,
+    /// The cage is beyond [`MAX_SCORED_ATOMS`].
+    TooLarge { atoms: usize },
 }
+
+/// Largest cage that is scored. The Hückel spectrum is a dense n x n eigenproblem (time n^3,
+/// memory 8n^2 bytes): C2000 took 31 s and 180 MB for `cagerank show C2000:1` on the 2-core
+/// sandbox (2026-12-03, under load), so C3000 stays within a few minutes while C100000 would need
+/// 80 GB. Larger cages can still be counted, wound and drawn.
+pub const MAX_SCORED_ATOMS: usize = 3000;
 
 impl fmt::Display for ScoreError {
     fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
@@ -93,6 +101,14 @@ impl fmt::Display for ScoreError {
             ScoreError::NoSpiral => write!(
                 f,
                 "this cage has no face spiral, so its symmetry cannot be read; it cannot be scored"
+            ),
+            ScoreError::TooLarge { atoms } => write!(
+                f,
+                "C{atoms} is too large to score: its dense Hückel eigenproblem grows as n^3 in \
+                 time and needs {:.1} GB (C2000 already takes about half a minute); cages up to \
+                 C{MAX_SCORED_ATOMS} are scored: use --count-only, `cagerank spiral` or \
+                 `cagerank draw` for larger ones",
+                (*atoms as f64).powi(2) * 8e-9
             ),
         }
     }
@@ -171,6 +187,7 @@ pub fn describe_all(spirals: &[Spiral], charge: i32) -> Vec<Result<Descriptors, 
 }
 
 fn check_inputs(cage: &Cage, canonical: &Canonical, charge: i32) -> Result<(), ScoreError> {
+    check_size(cage.atoms())?;
     huckel::occupation(cage.atoms(), charge)?;
     match canonical.automorphisms.first() {
         Some(a) if a.atoms.len() != cage.atoms() => Err(ScoreError::Mismatch {
@@ -179,6 +196,14 @@ fn check_inputs(cage: &Cage, canonical: &Canonical, charge: i32) -> Result<(), S
         }),
         _ => Ok(()),
     }
+}
+
+/// Refuses cages beyond [`MAX_SCORED_ATOMS`] before any work is done.
+pub fn check_size(atoms: usize) -> Result<(), ScoreError> {
+    if atoms > MAX_SCORED_ATOMS {
+        return Err(ScoreError::TooLarge { atoms });
+    }
+    Ok(())
 }
 
 fn describe_with(

@@ -352,3 +352,73 @@ fn text_listing_is_a_table_under_show_headings_with_units() {
         "{out}"
     );
 }
+
+#[test]
+fn cages_too_large_to_score_are_refused_before_any_work() {
+    // A dense Hückel spectrum of C100000 needs 8 * 1e10 bytes = 80 GB (n^2 doubles; common
+    // practice, no source); show used to search for the isomer and then abort on allocation.
+    for args in [
+        vec!["show", "C100000:1"],
+        vec!["enumerate", "5000", "--quiet"],
+    ] {
+        let (code, out, err) = run(&args);
+        assert_eq!(code, 2, "{args:?}: {err}");
+        assert!(out.is_empty(), "{args:?}");
+        assert_eq!(err.trim().lines().count(), 1, "{args:?}: {err}");
+        assert!(err.contains("too large to score"), "{args:?}: {err}");
+    }
+    // Counting needs no spectrum, so it is not refused (the run is cut short by its shard).
+    let (code, _, err) = run(&[
+        "enumerate",
+        "5000",
+        "--count-only",
+        "--quiet",
+        "--shard",
+        "1/100000",
+    ]);
+    assert_eq!(code, 0, "{err}");
+}
+
+#[test]
+fn other_commands_cap_threads_and_count_in_the_singular() {
+    // One addend on C60: all 60 atoms are equivalent under Ih, so exactly one pattern (a single
+    // orbit; Burnside's lemma).
+    let (code, out, err) = run(&["derive", "C60:IPR-1", "--add", "1", "--count-only"]);
+    assert_eq!(code, 0, "{err}");
+    assert!(out.contains(": 1 pattern "), "{out}");
+    // A query for an odd size suggests a size that has fullerenes (none has 22 atoms: Grünbaum
+    // & Motzkin 1963), not the size below.
+    let (code, _, err) = run(&["query", "--atoms", "23"]);
+    assert_eq!(code, 2);
+    assert!(
+        err.contains("--atoms 24") && !err.contains("--atoms 22"),
+        "{err}"
+    );
+    // screen --threads 100000 spent its time starting threads; capped, C20 takes well under a
+    // second (common practice, no source: the limit only catches a hang).
+    let dir = std::env::temp_dir().join(format!("cagerank-screen-cap-{}", std::process::id()));
+    let _ = std::fs::remove_dir_all(&dir);
+    std::fs::create_dir_all(&dir).unwrap();
+    let shipped = concat!(
+        env!("CARGO_MANIFEST_DIR"),
+        "/catalogues/fullerene-c20-all.cgr"
+    );
+    std::fs::copy(shipped, dir.join("fullerene-c20-all.cgr")).unwrap();
+    let catalogue = dir.to_str().unwrap();
+    let (code, out, err) = run_within(
+        &[
+            "screen",
+            "--atoms",
+            "20",
+            "--catalogue",
+            catalogue,
+            "--threads",
+            "100000",
+        ],
+        60,
+    );
+    assert_eq!(code, 0, "{err}");
+    assert!(err.contains("note: --threads 100000 capped to"), "{err}");
+    assert!(out.contains("C20:all-1"), "{out}");
+    let _ = std::fs::remove_dir_all(&dir);
+}
