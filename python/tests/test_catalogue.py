@@ -76,7 +76,10 @@ def test_query_is_a_dataframe_with_typed_columns(shipped_catalogue):
     # Klein et al., JACS 108 (1986) 1301: 12500 Kekulé structures of C60-Ih.
     assert row["kekule"] == 12500
     assert row["point_group"] == "Ih"
-    assert row["number"] == 1812 and row["ipr_number"] == 1
+    assert row["ipr_number"] == 1
+    # Fowler & Manolopoulos, Atlas of Fullerenes (1995): C60-Ih is C60:1812 of the complete list.
+    ih = cagerank.Catalogue(shipped_catalogue).query(60, point_group="Ih")
+    assert ih["number"].tolist() == [1812] and ih["ipr_number"].tolist() == [1]
 
 
 def test_stored_energies_join_and_rank_like_the_cli(cli, shipped_catalogue, tmp_path):

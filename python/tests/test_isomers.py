@@ -34,8 +34,8 @@ def test_ipr_c100_count_matches_oeis_a046880():
 
 
 def test_count_of_a_range_skips_c22_and_sums():
-    # OEIS A007894, n = 20..30: 1 + 0 + 1 + 1 + 2 + 3 + 6.
-    assert cagerank.count(range(20, 32, 2)) == 14
+    # OEIS A007894, n = 20..30: 1 + 0 + 1 + 1 + 2 + 3.
+    assert cagerank.count(range(20, 32, 2)) == 8
 
 
 def test_iterating_gives_the_count_in_isomer_number_order():
@@ -159,7 +159,7 @@ def test_the_gil_is_released_during_a_count():
     done = threading.Event()
 
     def work():
-        cagerank.count(80, threads=1)
+        cagerank.count(66, threads=1)
         done.set()
 
     t = threading.Thread(target=work)
