@@ -75,10 +75,11 @@ def main() -> None:
     fig, ax = plt.subplots(figsize=(7, 5), dpi=120)
     ax.scatter([r["relative_energy_kj"] for r in ranked], [r["tb_gap_ev"] for r in ranked],
                color="tab:blue")
-    for r in ranked[:6]:
+    for k, r in enumerate(ranked[:6]):
+        # Alternate above and below: the two lowest isomers sit close together.
         ax.annotate(f'{r["id"].split(":")[1]} {r["point_group"]}',
                     (r["relative_energy_kj"], r["tb_gap_ev"]),
-                    textcoords="offset points", xytext=(5, 4), fontsize=8)
+                    textcoords="offset points", xytext=(6, 5 if k % 2 else -11), fontsize=8)
     ax.set_xlabel("relative tight-binding energy (kJ/mol)")
     ax.set_ylabel("tight-binding HOMO-LUMO gap (eV)")
     ax.set_title("IPR C84 isomers: gap vs relative energy (Xu et al. 1992 tight binding)")

@@ -30,7 +30,8 @@ class Isomer:
     ``spiral`` holds the 12 pentagon positions (1-based) for fullerenes, the whole face-size
     sequence for other face sets. ``number`` is the position in the complete list of its size,
     ``ipr_number`` in the IPR list (``None`` where not on that list or not looked up).
-    ``descriptors`` is filled when the isomer was enumerated with ``score=True``.
+    ``descriptors`` is filled when the isomer was enumerated with ``score=True`` (for the
+    charge given there); :meth:`score` computes them for any charge.
     """
 
     atoms: int
@@ -77,8 +78,6 @@ class Isomer:
     def score(self, charge: int = 0) -> dict:
         """Cheap descriptors of this cage carrying ``charge`` (pentagon adjacencies, Hückel
         levels in |beta|, Kekulé count, point group, 13C NMR pattern, ...), as a dict."""
-        if charge == 0 and self.descriptors is not None:
-            return dict(self.descriptors)
         return _native.score_many([self._key()], charge=charge, threads=1)[0]
 
     def structure(self) -> "Structure":

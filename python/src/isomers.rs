@@ -264,9 +264,8 @@ fn from_spiral<'py>(
     }
     let spiral = convert::spiral(atoms, &spiral, face_set)?;
     let cage = spiral.to_cage();
-    let canonical = canonical_spiral(&cage).ok_or_else(|| {
-        crate::error("this cage has no face spiral, so it has no canonical form")
-    })?;
+    let canonical = canonical_spiral(&cage)
+        .ok_or_else(|| crate::error("this cage has no face spiral, so it has no canonical form"))?;
     let record = IsomerRecord::new(
         &canonical.spiral,
         canonical.automorphisms.len() as u32,
@@ -294,10 +293,7 @@ fn score_many<'py>(
         .collect::<PyResult<Vec<Spiral>>>()?;
     let scored = interrupt::run(py, move |_| describe_on_pool(&spirals, charge, threads))?;
     let scored = scored.map_err(crate::error)?;
-    scored
-        .iter()
-        .map(|d| convert::descriptors(py, d))
-        .collect()
+    scored.iter().map(|d| convert::descriptors(py, d)).collect()
 }
 
 fn describe_on_pool(

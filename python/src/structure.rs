@@ -207,8 +207,8 @@ fn identify_file<'py>(
         }
     };
     let shown = path.display().to_string();
-    let meta = std::fs::metadata(&path)
-        .map_err(|e| crate::error(format!("cannot read {shown}: {e}")))?;
+    let meta =
+        std::fs::metadata(&path).map_err(|e| crate::error(format!("cannot read {shown}: {e}")))?;
     if meta.len() > MAX_FILE_BYTES {
         return Err(crate::error(format!(
             "{shown} is larger than 1 GiB; split it into smaller files"
