@@ -4,8 +4,9 @@
 # says (maturin comes from PyPI through pip's build isolation), the test dependencies from
 # PyPI, pytest, and the example script into a temporary directory.
 #
-# The extension is built in release into the repository's target/ directory, so the library
-# and its dependencies compiled by `cargo test --release` are reused.
+# The extension is built in release into the repository's target/ directory, so a later run
+# on the same checkout reuses its build (the first build compiles the dependencies again, as
+# PyO3's build settings differ from the root crate's).
 set -euo pipefail
 cd "$(dirname "$0")/.."
 repo=$(pwd)
