@@ -5,3 +5,4 @@
 set -euo pipefail
 cd "$(dirname "$0")/.."
 cargo test --release
+python/test.sh

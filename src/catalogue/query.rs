@@ -6,18 +6,25 @@
 //! The order is the scorer's: rows implement [`RankFields`] and are compared by
 //! [`crate::score::rank::compare`]. Ranking here is a screening heuristic over stored
 //! descriptors, not a prediction of real-world stability. Printing is left to the CLI.
+//!
+//! [`Request`] is a query as a person writes it (the `cagerank query` options, the Python
+//! package's keywords): [`answer`] parses its text fields, runs the query and joins the
+//! tight-binding energies `screen` stored, so every front end gives the same rows and the same
+//! one-line errors.
 
 use super::chunk::{ChunkStats, Needs, View};
+use super::energies::{self, Energies, EnergyHeader, EnergyRecord};
 use super::format::DataFile;
-use super::record::{shell_code, shell_from_code, PointGroup, Record};
+use super::record::{shell_code, shell_from_code, shell_from_name, PointGroup, Record};
 use super::{data_file_name, CatalogueError};
 use crate::cage::FaceSet;
 pub use crate::score::rank::RankKey;
-use crate::score::rank::{self, default_keys, RankField, RankFields};
+use crate::score::rank::{self, default_keys, parse_keys, RankField, RankFields};
 use crate::score::{nmr, Shell};
 use crate::spiral::{check_fullerene_atoms, SpiralError};
 use std::cmp::Ordering;
 use std::collections::BinaryHeap;
+use std::fmt;
 use std::path::Path;
 
 /// Conditions a record must meet; `None` means "any".
@@ -369,6 +376,280 @@ pub fn query(dir: &Path, q: &Query) -> Result<Vec<Record>, CatalogueError> {
         position += records;
     }
     build(&mut file, kept.into_sorted())
+}
+
+/// A query as a person writes it: the options of `cagerank query`, text where the user types
+/// text. [`answer`] turns it into a [`Query`] with the CLI's checks and messages.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Request {
+    pub atoms: u32,
+    pub ipr: bool,
+    /// Face set name: `fullerene`, `4-6` or `4-5-6`.
+    pub faces: String,
+    pub charge: i32,
+    pub top: Option<usize>,
+    /// Sort keys, e.g. `pentagon_adjacencies,-gap`; may include [`ENERGY_KEY`].
+    pub rank_by: Option<String>,
+    pub max_pentagon_adjacencies: Option<u32>,
+    pub min_gap: Option<f32>,
+    /// Shell type name, e.g. `properly-closed`.
+    pub shell: Option<String>,
+    /// Schoenflies symbol, e.g. `D5h`.
+    pub point_group: Option<String>,
+    /// 13C NMR pattern `LINESxINTENSITY,...` that must match exactly.
+    pub nmr: Option<String>,
+    pub nmr_lines: Option<u64>,
+    /// Measured 13C NMR pattern whose lines may have merged.
+    pub nmr_merged: Option<String>,
+    pub chiral: Option<bool>,
+}
+
+impl Request {
+    /// Every isomer of one size and list, in the default order.
+    pub fn new(atoms: u32, ipr: bool) -> Request {
+        Request {
+            atoms,
+            ipr,
+            faces: FaceSet::Fullerene.name().to_string(),
+            charge: 0,
+            top: None,
+            rank_by: None,
+            max_pentagon_adjacencies: None,
+            min_gap: None,
+            shell: None,
+            point_group: None,
+            nmr: None,
+            nmr_lines: None,
+            nmr_merged: None,
+            chiral: None,
+        }
+    }
+
+    /// The catalogue query this request asks for (without the energy key, which is not a
+    /// catalogue column: see [`answer`]).
+    pub fn to_query(&self) -> Result<Query, RequestError> {
+        let invalid = |m: String| RequestError::Invalid(m);
+        let shell = match &self.shell {
+            Some(s) => Some(shell_from_name(s).ok_or_else(|| {
+                invalid(format!(
+                    "unknown shell type '{s}'; use properly-closed, pseudo-closed, meta-closed, open-doublet or open"
+                ))
+            })?),
+            None => None,
+        };
+        let point_group = match &self.point_group {
+            Some(g) => Some(PointGroup::from_name(g).ok_or_else(|| {
+                invalid(format!(
+                    "'{g}' is not a point group a cage can have; use e.g. Ih, D5h, C2v, C1"
+                ))
+            })?),
+            None => None,
+        };
+        let pattern =
+            |text: &str| nmr::parse_pattern(text, self.atoms).map_err(|e| invalid(e.to_string()));
+        let nmr = self.nmr.as_deref().map(pattern).transpose()?;
+        let nmr_merged = self.nmr_merged.as_deref().map(pattern).transpose()?;
+        if self.nmr_lines == Some(0) {
+            return Err(invalid(
+                "--nmr-lines 0 matches nothing; every cage has at least 1 line".to_string(),
+            ));
+        }
+        let rank_by = match self.rank_by.as_deref().map(split_energy_key) {
+            Some((_, rest)) if rest.is_empty() => Vec::new(),
+            Some((_, rest)) => parse_keys(&rest).map_err(|e| invalid(e.to_string()))?,
+            None => Vec::new(),
+        };
+        Ok(Query {
+            atoms: self.atoms,
+            face_set: parse_faces(&self.faces)?,
+            ipr: self.ipr,
+            charge: self.charge,
+            filter: Filter {
+                max_pentagon_adjacencies: self.max_pentagon_adjacencies,
+                min_gap: self.min_gap,
+                shell,
+                point_group,
+                nmr,
+                nmr_lines: self.nmr_lines,
+                nmr_merged,
+                chiral: self.chiral,
+                ipr_only: false,
+            },
+            rank_by,
+            top: self.top,
+        })
+    }
+}
+
+/// A face set by its name (`fullerene`, `4-6`, `4-5-6`).
+pub fn parse_faces(text: &str) -> Result<FaceSet, RequestError> {
+    [
+        FaceSet::Fullerene,
+        FaceSet::SquareHexagon,
+        FaceSet::SquarePentagonHexagon,
+    ]
+    .into_iter()
+    .find(|f| f.name() == text)
+    .ok_or_else(|| {
+        RequestError::Invalid(format!(
+            "unknown face set '{text}'; use fullerene, 4-6 or 4-5-6"
+        ))
+    })
+}
+
+/// Why a [`Request`] got no answer.
+#[derive(Debug)]
+pub enum RequestError {
+    /// The request itself is wrong (a bad name, pattern or count): the message says what to do.
+    Invalid(String),
+    /// The catalogue could not answer (see [`CatalogueError::is_user_error`]).
+    Catalogue(CatalogueError),
+}
+
+impl fmt::Display for RequestError {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        match self {
+            RequestError::Invalid(m) => f.write_str(m),
+            RequestError::Catalogue(e) => e.fmt(f),
+        }
+    }
+}
+
+impl std::error::Error for RequestError {}
+
+impl From<CatalogueError> for RequestError {
+    fn from(e: CatalogueError) -> RequestError {
+        RequestError::Catalogue(e)
+    }
+}
+
+/// The key that ranks by stored tight-binding energies (not a catalogue column).
+pub const ENERGY_KEY: &str = "relative_energy_kj";
+
+/// Splits `relative_energy_kj` (with its sign) out of a rank-key list: whether it was there
+/// and descending, and the other keys in their order.
+fn split_energy_key(text: &str) -> (Option<bool>, String) {
+    let mut energy = None;
+    let mut rest = Vec::new();
+    for key in text.split(',').map(str::trim).filter(|k| !k.is_empty()) {
+        let descending = key.starts_with('-');
+        if key.trim_start_matches(['-', '+']) == ENERGY_KEY {
+            energy.get_or_insert(descending);
+        } else {
+            rest.push(key);
+        }
+    }
+    (energy, rest.join(","))
+}
+
+/// Stored tight-binding energies of the queried run, joined to records by list number.
+#[derive(Debug, Clone)]
+pub struct StoredEnergies {
+    energies: Option<Energies>,
+    ipr: bool,
+}
+
+impl StoredEnergies {
+    /// The energies `screen` stored for the run `q` reads (none is not an error).
+    pub fn read(dir: &Path, q: &Query) -> Result<StoredEnergies, CatalogueError> {
+        let key = EnergyHeader {
+            face_set: q.face_set,
+            atoms: q.atoms,
+            ipr: q.ipr,
+            charge: q.charge,
+            model: crate::screen::MODEL.to_string(),
+            max_force: 0.0,
+            made_by: String::new(),
+        };
+        Ok(StoredEnergies {
+            energies: energies::read(dir, &key)?,
+            ipr: q.ipr,
+        })
+    }
+
+    /// The stored result for `r` and its energy above the lowest, kJ/mol, if its spiral
+    /// matches the one stored under its number.
+    pub fn get(&self, r: &Record) -> Option<(&EnergyRecord, Option<f64>)> {
+        let energies = self.energies.as_ref()?;
+        let number = if self.ipr { r.ipr_number } else { r.number }?;
+        let e = energies
+            .get(number)
+            .filter(|e| e.special_faces == r.special_faces)?;
+        Some((e, energies.relative_kj(e)))
+    }
+
+    /// Energy of `r` above the lowest rankable isomer, kJ/mol.
+    pub fn relative_kj(&self, r: &Record) -> Option<f64> {
+        self.get(r).and_then(|(_, rel)| rel)
+    }
+
+    /// True when no energy is stored for the run.
+    pub fn is_empty(&self) -> bool {
+        self.energies.as_ref().is_none_or(|e| e.records.is_empty())
+    }
+}
+
+/// The rows of a [`Request`], best first, with the stored energies to join to them.
+#[derive(Debug, Clone)]
+pub struct Answer {
+    pub records: Vec<Record>,
+    pub energies: StoredEnergies,
+}
+
+/// Answers `request` from the catalogue in `dir`: checks and parses it, queries, and when the
+/// rank keys name [`ENERGY_KEY`] sorts by stored energy (isomers without one last, the other
+/// keys breaking ties) before cutting to `top`.
+pub fn answer(dir: &Path, request: &Request) -> Result<Answer, RequestError> {
+    let mut q = request.to_query()?;
+    if request.top == Some(0) {
+        return Err(RequestError::Invalid(
+            "--top 0 would show nothing; give K >= 1 or leave it out".to_string(),
+        ));
+    }
+    let by_energy = request
+        .rank_by
+        .as_deref()
+        .and_then(|t| split_energy_key(t).0);
+    if by_energy.is_some() {
+        q.top = None;
+    }
+    let mut records = query(dir, &q)?;
+    let energies = StoredEnergies::read(dir, &q)?;
+    if let Some(descending) = by_energy {
+        if energies.is_empty() {
+            return Err(RequestError::Invalid(no_energies(dir, &q)));
+        }
+        // Stable: records with equal (or no) energy keep the order of the other keys.
+        records.sort_by(
+            |a, b| match (energies.relative_kj(a), energies.relative_kj(b)) {
+                (Some(x), Some(y)) if descending => y.total_cmp(&x),
+                (Some(x), Some(y)) => x.total_cmp(&y),
+                (Some(_), None) => Ordering::Less,
+                (None, Some(_)) => Ordering::Greater,
+                (None, None) => Ordering::Equal,
+            },
+        );
+        records.truncate(request.top.unwrap_or(usize::MAX));
+    }
+    Ok(Answer { records, energies })
+}
+
+fn no_energies(dir: &Path, q: &Query) -> String {
+    format!(
+        "no tight-binding energies are stored for C{} ({} list, charge {:+}) in {}; run `cagerank screen --atoms {}{}{} --catalogue {}` first",
+        q.atoms,
+        if q.ipr { "IPR" } else { "complete" },
+        q.charge,
+        dir.display(),
+        q.atoms,
+        if q.ipr { " --ipr" } else { "" },
+        if q.charge == 0 {
+            String::new()
+        } else {
+            format!(" --charge {}", q.charge)
+        },
+        dir.display()
+    )
 }
 
 /// Full, numbered records for `rows` (in that order), reading each chunk they come from once.

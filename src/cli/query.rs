@@ -1,16 +1,14 @@
 //! `cagerank query`: ranked, filtered isomers of one size from a catalogue, as a table, CSV or
 //! JSON lines (the same keys as `enumerate --json`, without per-bond arrays).
 //!
-//! Parsing and printing only; the search is `catalogue::query`.
+//! Parsing and printing only; the search, its checks and the energy join are
+//! `catalogue::query::answer`.
 
 use super::output::{write_line, Out};
 use super::CliError;
-use cagerank::cage::FaceSet;
-use cagerank::catalogue::energies::{self, Energies, EnergyHeader, EnergyRecord};
-use cagerank::catalogue::record::shell_from_name;
-use cagerank::catalogue::{self, CatalogueError, Filter, PointGroup, Query, Record};
-use cagerank::score::nmr::{format_pattern, parse_pattern};
-use cagerank::score::rank::parse_keys;
+use cagerank::catalogue::query::{self as request, Request, RequestError, StoredEnergies};
+use cagerank::catalogue::{self, CatalogueError, Record};
+use cagerank::score::nmr::format_pattern;
 use std::path::PathBuf;
 
 const CAUTION: &str = "Caution: rankings are screening heuristics, not predictions of safety or \
@@ -105,184 +103,45 @@ pub fn catalogue_error(e: CatalogueError) -> CliError {
     }
 }
 
-fn parse_faces(text: &str) -> Result<FaceSet, CliError> {
-    [
-        FaceSet::Fullerene,
-        FaceSet::SquareHexagon,
-        FaceSet::SquarePentagonHexagon,
-    ]
-    .into_iter()
-    .find(|f| f.name() == text)
-    .ok_or_else(|| {
-        CliError::usage(format!(
-            "unknown face set '{text}'; use fullerene, 4-6 or 4-5-6"
-        ))
-    })
-}
-
-fn build_query(args: &Args) -> Result<Query, CliError> {
-    let shell = match &args.shell {
-        Some(s) => Some(shell_from_name(s).ok_or_else(|| {
-            CliError::usage(format!(
-                "unknown shell type '{s}'; use properly-closed, pseudo-closed, meta-closed, open-doublet or open"
-            ))
-        })?),
-        None => None,
-    };
-    let point_group = match &args.point_group {
-        Some(g) => Some(PointGroup::from_name(g).ok_or_else(|| {
-            CliError::usage(format!(
-                "'{g}' is not a point group a cage can have; use e.g. Ih, D5h, C2v, C1"
-            ))
-        })?),
-        None => None,
-    };
-    let pattern =
-        |text: &str| parse_pattern(text, args.atoms).map_err(|e| CliError::usage(e.to_string()));
-    let nmr = args.nmr.as_deref().map(pattern).transpose()?;
-    let nmr_merged = args.nmr_merged.as_deref().map(pattern).transpose()?;
-    if args.nmr_lines == Some(0) {
-        return Err(CliError::usage(
-            "--nmr-lines 0 matches nothing; every cage has at least 1 line",
-        ));
-    }
-    let chiral = match (args.chiral, args.achiral) {
-        (true, _) => Some(true),
-        (_, true) => Some(false),
-        _ => None,
-    };
-    let rank_by = match args.rank_by.as_deref().map(split_energy_key) {
-        Some((_, rest)) if rest.is_empty() => Vec::new(),
-        Some((_, rest)) => parse_keys(&rest).map_err(|e| CliError::usage(e.to_string()))?,
-        None => Vec::new(),
-    };
-    Ok(Query {
+fn to_request(args: &Args) -> Request {
+    Request {
         atoms: args.atoms,
-        face_set: parse_faces(&args.faces)?,
         ipr: args.ipr,
+        faces: args.faces.clone(),
         charge: args.charge.charge,
-        filter: Filter {
-            max_pentagon_adjacencies: args.max_pentagon_adjacencies,
-            min_gap: args.min_gap,
-            shell,
-            point_group,
-            nmr,
-            nmr_lines: args.nmr_lines,
-            nmr_merged,
-            chiral,
-            ipr_only: false,
-        },
-        rank_by,
         top: args.top,
-    })
+        rank_by: args.rank_by.clone(),
+        max_pentagon_adjacencies: args.max_pentagon_adjacencies,
+        min_gap: args.min_gap,
+        shell: args.shell.clone(),
+        point_group: args.point_group.clone(),
+        nmr: args.nmr.clone(),
+        nmr_lines: args.nmr_lines,
+        nmr_merged: args.nmr_merged.clone(),
+        chiral: match (args.chiral, args.achiral) {
+            (true, _) => Some(true),
+            (_, true) => Some(false),
+            _ => None,
+        },
+    }
 }
 
-/// The key that ranks by stored tight-binding energies (not a catalogue column).
-const ENERGY_KEY: &str = "relative_energy_kj";
-
-/// Splits `relative_energy_kj` (with its sign) out of a `--rank-by` list: whether it was there
-/// and descending, and the other keys in their order.
-fn split_energy_key(text: &str) -> (Option<bool>, String) {
-    let mut energy = None;
-    let mut rest = Vec::new();
-    for key in text.split(',').map(str::trim).filter(|k| !k.is_empty()) {
-        let descending = key.starts_with('-');
-        if key.trim_start_matches(['-', '+']) == ENERGY_KEY {
-            energy.get_or_insert(descending);
-        } else {
-            rest.push(key);
-        }
-    }
-    (energy, rest.join(","))
-}
-
-/// Stored tight-binding energies of the queried run, joined to records by list number.
-struct EnergyColumn {
-    energies: Option<Energies>,
-    ipr: bool,
-}
-
-impl EnergyColumn {
-    fn read(dir: &std::path::Path, q: &Query) -> Result<EnergyColumn, CliError> {
-        let key = EnergyHeader {
-            face_set: q.face_set,
-            atoms: q.atoms,
-            ipr: q.ipr,
-            charge: q.charge,
-            model: cagerank::screen::MODEL.to_string(),
-            max_force: 0.0,
-            made_by: String::new(),
-        };
-        let energies = energies::read(dir, &key).map_err(catalogue_error)?;
-        Ok(EnergyColumn {
-            energies,
-            ipr: q.ipr,
-        })
-    }
-
-    /// The stored result for `r`, if its spiral matches the one stored under its number.
-    fn get(&self, r: &Record) -> Option<(&EnergyRecord, Option<f64>)> {
-        let energies = self.energies.as_ref()?;
-        let number = if self.ipr { r.ipr_number } else { r.number }?;
-        let e = energies
-            .get(number)
-            .filter(|e| e.special_faces == r.special_faces)?;
-        Some((e, energies.relative_kj(e)))
-    }
-
-    fn relative_kj(&self, r: &Record) -> Option<f64> {
-        self.get(r).and_then(|(_, rel)| rel)
-    }
-
-    fn is_empty(&self) -> bool {
-        self.energies.as_ref().is_none_or(|e| e.records.is_empty())
+/// A bad request is the user's to fix; catalogue errors keep their own exit codes.
+pub fn request_error(e: RequestError) -> CliError {
+    match e {
+        RequestError::Invalid(m) => CliError::usage(m),
+        RequestError::Catalogue(e) => catalogue_error(e),
     }
 }
 
 pub fn run(args: Args) -> Result<(), CliError> {
-    let mut query = build_query(&args)?;
-    if args.top == Some(0) {
-        return Err(CliError::usage(
-            "--top 0 would show nothing; give K >= 1 or leave it out",
-        ));
-    }
     let dir = catalogue_dir(&args.catalogue);
-    let by_energy = args.rank_by.as_deref().and_then(|t| split_energy_key(t).0);
-    if by_energy.is_some() {
-        query.top = None;
-    }
-    let mut records = catalogue::query(&dir, &query).map_err(catalogue_error)?;
-    let energy = EnergyColumn::read(&dir, &query)?;
-    if let Some(descending) = by_energy {
-        if energy.is_empty() {
-            return Err(CliError::usage(format!(
-                "no tight-binding energies are stored for C{} ({} list, charge {:+}) in {}; run `cagerank screen --atoms {}{}{} --catalogue {}` first",
-                query.atoms,
-                if query.ipr { "IPR" } else { "complete" },
-                query.charge,
-                dir.display(),
-                query.atoms,
-                if query.ipr { " --ipr" } else { "" },
-                if query.charge == 0 { String::new() } else { format!(" --charge {}", query.charge) },
-                dir.display()
-            )));
-        }
-        // Stable: records with equal (or no) energy keep the order of the other keys.
-        records.sort_by(
-            |a, b| match (energy.relative_kj(a), energy.relative_kj(b)) {
-                (Some(x), Some(y)) if descending => y.total_cmp(&x),
-                (Some(x), Some(y)) => x.total_cmp(&y),
-                (Some(_), None) => std::cmp::Ordering::Less,
-                (None, Some(_)) => std::cmp::Ordering::Greater,
-                (None, None) => std::cmp::Ordering::Equal,
-            },
-        );
-        records.truncate(args.top.unwrap_or(usize::MAX));
-    }
+    let answer = request::answer(&dir, &to_request(&args)).map_err(request_error)?;
+    let records = answer.records;
     let mut out = Out::stdout();
     // Every record of one run has the same electron count, so the SOMO column is all or none.
     let somo = records.iter().any(|r| r.somo.is_some());
-    let energy = (!energy.is_empty()).then_some(&energy);
+    let energy = (!answer.energies.is_empty()).then_some(&answer.energies);
     match args.format {
         Format::Table => print_table(&mut out, &records, somo, energy)?,
         Format::Csv => print_csv(&mut out, &records, somo, energy)?,
@@ -320,7 +179,7 @@ const SOMO: usize = 8;
 /// Columns added when the run has stored tight-binding energies.
 const ENERGY_COLUMNS: [&str; 2] = ["relative_energy_kj", "tb_gap_ev"];
 
-fn columns(somo: bool, energy: Option<&EnergyColumn>) -> Vec<&'static str> {
+fn columns(somo: bool, energy: Option<&StoredEnergies>) -> Vec<&'static str> {
     let mut names: Vec<&str> = COLUMNS
         .iter()
         .enumerate()
@@ -339,7 +198,7 @@ fn cells(
     rank: usize,
     r: &Record,
     somo: bool,
-    energy: Option<&EnergyColumn>,
+    energy: Option<&StoredEnergies>,
     missing: &str,
 ) -> Vec<String> {
     let number_text = |n: Option<u64>| n.map_or(missing.to_string(), |n| n.to_string());
@@ -380,7 +239,7 @@ fn print_table(
     out: &mut Out,
     records: &[Record],
     somo: bool,
-    energy: Option<&EnergyColumn>,
+    energy: Option<&StoredEnergies>,
 ) -> Result<(), CliError> {
     let rows: Vec<Vec<String>> = records
         .iter()
@@ -425,7 +284,7 @@ fn print_csv(
     out: &mut Out,
     records: &[Record],
     somo: bool,
-    energy: Option<&EnergyColumn>,
+    energy: Option<&StoredEnergies>,
 ) -> Result<(), CliError> {
     write_line(out, &columns(somo, energy).join(","))?;
     for (i, r) in records.iter().enumerate() {
@@ -441,7 +300,7 @@ fn print_csv(
 fn print_json(
     out: &mut Out,
     records: &[Record],
-    energy: Option<&EnergyColumn>,
+    energy: Option<&StoredEnergies>,
 ) -> Result<(), CliError> {
     for (i, r) in records.iter().enumerate() {
         let mut scored = r.to_scored();

@@ -1,0 +1,5 @@
+"""The exception every cagerank failure raises (defined in the extension module)."""
+
+from ._native import CagerankError
+
+__all__ = ["CagerankError"]
