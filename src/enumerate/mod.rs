@@ -31,6 +31,7 @@
 //! that share a state are the same start. Each such sequence is therefore wound to its leaf and
 //! rejected there, which is why hexagon starts cost several times more (docs/performance.md).
 
+pub mod faces;
 mod lookup;
 mod store;
 
@@ -526,6 +527,7 @@ impl<'a> Search<'a> {
             FaceSet::Fullerene => 0,
             FaceSet::SquareHexagon => 1,
             FaceSet::SquarePentagonHexagon => 2,
+            FaceSet::PentagonHexagonHeptagon { .. } => 3,
         };
         let header = (r as u32) << 12 | left << 8 | set << 6 | u32::from(self.spec.ipr) << 5;
         let key = if r <= memo.depth && looked_up(r, memo.depth) && self.worth_looking_up(r, memo) {
@@ -629,6 +631,9 @@ impl<'a> Search<'a> {
 /// The units of a run, in spiral order. The cut depth grows until there are at least
 /// [`TARGET_UNITS`] units (or the whole sequence is reached), so the list depends on `spec` only.
 pub fn units(spec: &Spec) -> Vec<Unit> {
+    if spec.face_set != FaceSet::Fullerene {
+        return faces::units(spec);
+    }
     let mut search = Search::new(spec);
     // Catalogues and shards record units by index, so the unit list must stay as it was when
     // they were written: the isolated-pentagon bound, added later, only prunes below the units
@@ -662,6 +667,9 @@ const PIECE_LEVELS: usize = 3;
 
 /// Every isomer whose canonical spiral starts with the unit's prefix, in spiral order.
 pub fn run_unit(spec: &Spec, unit: &Unit) -> Vec<Found> {
+    if spec.face_set != FaceSet::Fullerene {
+        return faces::run_unit(spec, unit);
+    }
     store::widen(spec.all_starts);
     let mut search = Search::new(spec);
     let mut used = 0;
