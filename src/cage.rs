@@ -48,7 +48,9 @@ impl EdgeId {
 /// {4,5,6} cage 2 f4 + f5 = 12, and a {5,6,7} cage f5 - f7 = 12: with heptagons the number of
 /// pentagons at a given size is not fixed, so that family carries a bound on the heptagons
 /// (domain notes §9), and cages with different bounds are different lists.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, serde::Serialize, serde::Deserialize)]
+#[derive(
+    Debug, Clone, Copy, PartialEq, Eq, PartialOrd, Ord, Hash, serde::Serialize, serde::Deserialize,
+)]
 pub enum FaceSet {
     /// Pentagons and hexagons: the classical fullerenes.
     Fullerene,

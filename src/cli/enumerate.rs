@@ -6,6 +6,7 @@ use super::progress;
 use super::query::catalogue_error;
 use super::sizes::{parse_sizes, Size};
 use super::CliError;
+use cagerank::cage::FaceSet;
 use cagerank::catalogue::{self, made_by, Record, RunInfo, ShardId, Writer};
 use cagerank::enumerate::{self, Found, Isomer, Options, Shard, Spec};
 use cagerank::score::{self, huckel, Descriptors, ScoreError, Scored};
@@ -53,6 +54,8 @@ pub struct Args {
     #[arg(long, conflicts_with = "all_starts")]
     pub pentagon_starts: bool,
     #[command(flatten)]
+    pub faces: super::cages::FacesArg,
+    #[command(flatten)]
     pub charge: super::ChargeArg,
     /// Write scored isomers into this catalogue directory (resumable: run the same command again
     /// after an interruption). Default directory: $CAGERANK_CATALOGUE or ./catalogues. Runs of
@@ -61,8 +64,15 @@ pub struct Args {
     pub catalogue: Option<PathBuf>,
 }
 
-pub fn run(args: Args) -> Result<(), CliError> {
-    let sizes = parse_sizes(&args.sizes)?;
+pub fn run(mut args: Args) -> Result<(), CliError> {
+    let set = args.faces.face_set()?;
+    // For fullerenes --isolated is the isolated-pentagon rule, i.e. --ipr.
+    args.ipr |= set == FaceSet::Fullerene && args.faces.isolated;
+    let sizes = if set == FaceSet::Fullerene {
+        parse_sizes(&args.sizes)?
+    } else {
+        super::cages::parse_sizes(&args.sizes, set)?
+    };
     let mut out = Out::stdout();
     for size in sizes {
         match size {
@@ -74,6 +84,10 @@ pub fn run(args: Args) -> Result<(), CliError> {
 }
 
 fn spec_for(args: &Args, atoms: u64) -> Result<Spec, CliError> {
+    let set = args.faces.face_set()?;
+    if set != FaceSet::Fullerene {
+        return super::cages::spec(set, atoms, args.faces.isolated, args.ipr);
+    }
     let mut spec = Spec::fullerene(atoms, args.ipr).map_err(|e| CliError::usage(e.to_string()))?;
     spec.all_starts = (spec.all_starts || args.all_starts) && !args.pentagon_starts;
     if !spec.spiral_complete() {
@@ -106,6 +120,11 @@ fn report_empty(out: &mut Out, args: &Args, atoms: u64) -> Result<(), CliError> 
 }
 
 fn count_line(args: &Args, atoms: u64, count: u64) -> String {
+    if let Ok(set) = args.faces.face_set() {
+        if set != FaceSet::Fullerene {
+            return super::cages::count_line(args.json, set, atoms, args.faces.isolated, count);
+        }
+    }
     if args.json {
         json!({"atoms": atoms, "ipr": args.ipr, "isomers": count}).to_string()
     } else {
@@ -316,6 +335,11 @@ impl Batches {
 }
 
 fn isomer_line(args: &Args, atoms: u64, iso: &Isomer, d: Descriptors) -> String {
+    if let Ok(set) = args.faces.face_set() {
+        if set != FaceSet::Fullerene {
+            return super::cages::isomer_line(args.json, set, atoms, iso, d);
+        }
+    }
     if args.json {
         let mut v = serde_json::to_value(Scored::new(&iso.spiral, iso.number, iso.ipr_number, d))
             .unwrap_or_default();

@@ -38,7 +38,10 @@ pub struct Args {
     /// IPR isomers only (numbers are IPR-list numbers).
     #[arg(long)]
     pub ipr: bool,
-    /// Face set of the cages: fullerene, 4-6 or 4-5-6.
+    /// Face set of the cages: fullerene, 4-6, 4-5-6 or 5-6-7hH (5-6-7 with at most H
+    /// heptagons, as enumerated with --faces 5-6-7 --heptagons H). With a set other than
+    /// fullerene, --ipr reads the isolated list (no two squares, or for 5-6-7 pentagons, share
+    /// an edge).
     #[arg(long, default_value = "fullerene", value_name = "SET")]
     pub faces: String,
     /// Read the run made for this cage charge (`enumerate --charge Q --catalogue`), e.g. -6 for
@@ -106,16 +109,11 @@ pub fn catalogue_error(e: CatalogueError) -> CliError {
 }
 
 fn parse_faces(text: &str) -> Result<FaceSet, CliError> {
-    [
-        FaceSet::Fullerene,
-        FaceSet::SquareHexagon,
-        FaceSet::SquarePentagonHexagon,
-    ]
-    .into_iter()
-    .find(|f| f.name() == text)
-    .ok_or_else(|| {
+    FaceSet::from_label(text.trim()).ok_or_else(|| {
         CliError::usage(format!(
-            "unknown face set '{text}'; use fullerene, 4-6 or 4-5-6"
+            "unknown face set '{}'; use fullerene, 4-6, 4-5-6 or 5-6-7hH (H the heptagon bound \
+             of the run, e.g. 5-6-7h1)",
+            cagerank::id::printable(text)
         ))
     })
 }
