@@ -245,8 +245,10 @@ fn parse_formula(text: &str) -> Option<(u32, bool)> {
 /// A leading face-set label and its `-` (`4-5-6-all-7` → 4-5-6, `all-7`); fullerenes when the
 /// text starts with none.
 fn split_face_set(text: &str) -> (FaceSet, &str) {
-    let label_end = if text.starts_with("5-6-7h") {
-        text[6..].find(|c: char| !c.is_ascii_digit()).map(|i| i + 6)
+    let label_end = if let Some(bound) = text.strip_prefix("5-6-7h") {
+        bound
+            .find(|c: char| !c.is_ascii_digit())
+            .map(|i| i + "5-6-7h".len())
     } else {
         ["4-5-6", "4-6", "fullerene"]
             .iter()

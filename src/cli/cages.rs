@@ -78,14 +78,29 @@ fn count(text: &str, arg: &str) -> Result<u64, CliError> {
 }
 
 /// The search for one size of a non-fullerene set (`--ipr` is the fullerene rule and is
-/// refused here in favour of `--isolated`).
-pub fn spec(set: FaceSet, atoms: u64, isolated: bool, ipr: bool) -> Result<Spec, CliError> {
+/// refused here in favour of `--isolated`). `smallest_starts` (`--pentagon-starts`) starts
+/// spirals only on the set's smallest face, a completeness check that may miss cages.
+pub fn spec(
+    set: FaceSet,
+    atoms: u64,
+    isolated: bool,
+    ipr: bool,
+    smallest_starts: bool,
+) -> Result<Spec, CliError> {
     if ipr {
         return Err(CliError::usage(format!(
             "--ipr is the fullerene rule; for face set {set} use --isolated"
         )));
     }
-    Spec::cages(atoms, set, isolated).map_err(|e| CliError::usage(e.to_string()))
+    let mut spec = Spec::cages(atoms, set, isolated).map_err(|e| CliError::usage(e.to_string()))?;
+    if smallest_starts {
+        spec.all_starts = false;
+        eprintln!(
+            "cagerank: warning: spirals start only on the smallest face of {set}; this may miss \
+             cages (all 4-5-6 cages of 20 atoms: 22 of 23)"
+        );
+    }
+    Ok(spec)
 }
 
 /// The isomer's ID in its own list (the complete list unless only the isolated list numbers it).

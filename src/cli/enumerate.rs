@@ -50,7 +50,8 @@ pub struct Args {
     #[arg(long)]
     pub all_starts: bool,
     /// Search only spirals starting on a pentagon, also beyond C98 (IPR C120): several times
-    /// faster there, but may miss cages (all C100 then gives 285,913 of 285,914).
+    /// faster there, but may miss cages (all C100 then gives 285,913 of 285,914). With another
+    /// --faces, only spirals starting on the set's smallest face (a completeness check).
     #[arg(long, conflicts_with = "all_starts")]
     pub pentagon_starts: bool,
     #[command(flatten)]
@@ -86,7 +87,8 @@ pub fn run(mut args: Args) -> Result<(), CliError> {
 fn spec_for(args: &Args, atoms: u64) -> Result<Spec, CliError> {
     let set = args.faces.face_set()?;
     if set != FaceSet::Fullerene {
-        return super::cages::spec(set, atoms, args.faces.isolated, args.ipr);
+        let isolated = args.faces.isolated;
+        return super::cages::spec(set, atoms, isolated, args.ipr, args.pentagon_starts);
     }
     let mut spec = Spec::fullerene(atoms, args.ipr).map_err(|e| CliError::usage(e.to_string()))?;
     spec.all_starts = (spec.all_starts || args.all_starts) && !args.pentagon_starts;
