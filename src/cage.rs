@@ -44,8 +44,13 @@ impl EdgeId {
 /// Which ring sizes a family of cages may use.
 ///
 /// Euler's formula for a cubic polyhedron, sum over faces of (6 - size) = 12, ties the counts
-/// together; the enumerator uses it as its budget.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, serde::Serialize, serde::Deserialize)]
+/// together; the enumerator uses it as its budget. So a {4,6} cage has exactly six squares, a
+/// {4,5,6} cage 2 f4 + f5 = 12, and a {5,6,7} cage f5 - f7 = 12: with heptagons the number of
+/// pentagons at a given size is not fixed, so that family carries a bound on the heptagons
+/// (domain notes §9), and cages with different bounds are different lists.
+#[derive(
+    Debug, Clone, Copy, PartialEq, Eq, PartialOrd, Ord, Hash, serde::Serialize, serde::Deserialize,
+)]
 pub enum FaceSet {
     /// Pentagons and hexagons: the classical fullerenes.
     Fullerene,
@@ -53,7 +58,14 @@ pub enum FaceSet {
     SquareHexagon,
     /// Squares, pentagons and hexagons.
     SquarePentagonHexagon,
+    /// Pentagons, hexagons and at most `heptagons` heptagons (carbon cages with heptagons).
+    /// Appended last, so the catalogue's enum codes of the other sets do not change.
+    PentagonHexagonHeptagon { heptagons: u8 },
 }
+
+/// Largest heptagon bound accepted: far beyond the one or two heptagons studied in practice,
+/// and it keeps the names short.
+pub const MAX_HEPTAGONS: u8 = 12;
 
 impl FaceSet {
     /// The allowed face sizes in increasing order.
@@ -62,6 +74,7 @@ impl FaceSet {
             FaceSet::Fullerene => &[5, 6],
             FaceSet::SquareHexagon => &[4, 6],
             FaceSet::SquarePentagonHexagon => &[4, 5, 6],
+            FaceSet::PentagonHexagonHeptagon { .. } => &[5, 6, 7],
         }
     }
 
@@ -69,19 +82,112 @@ impl FaceSet {
         self.sizes().contains(&size)
     }
 
-    /// Short stable name used in file names and JSON.
+    /// Most heptagons a cage of this set may have (0 for the sets without heptagons).
+    pub fn heptagon_bound(self) -> u8 {
+        match self {
+            FaceSet::PentagonHexagonHeptagon { heptagons } => heptagons,
+            _ => 0,
+        }
+    }
+
+    /// The face size whose faces may not share an edge under the set's isolation rule: pentagons
+    /// for fullerenes and heptagon cages (the isolated-pentagon rule), squares for the sets with
+    /// squares (the isolated-square rule of BN cages; domain notes §9).
+    pub fn isolated_size(self) -> u8 {
+        match self {
+            FaceSet::Fullerene | FaceSet::PentagonHexagonHeptagon { .. } => 5,
+            FaceSet::SquareHexagon | FaceSet::SquarePentagonHexagon => 4,
+        }
+    }
+
+    /// The family's name as written on the command line: `fullerene`, `4-6`, `4-5-6` or
+    /// `5-6-7` (without the heptagon bound; see [`FaceSet`]'s `Display` for the full name).
     pub fn name(self) -> &'static str {
         match self {
             FaceSet::Fullerene => "fullerene",
             FaceSet::SquareHexagon => "4-6",
             FaceSet::SquarePentagonHexagon => "4-5-6",
+            FaceSet::PentagonHexagonHeptagon { .. } => "5-6-7",
         }
+    }
+
+    /// The set named `name` (as [`FaceSet::name`] writes it), with `heptagons` as the bound of
+    /// `5-6-7`, which needs one; the other sets refuse a bound. The error says what to write.
+    pub fn parse(name: &str, heptagons: Option<u8>) -> Result<FaceSet, String> {
+        let set = match name.trim().to_ascii_lowercase().as_str() {
+            "fullerene" | "5-6" => FaceSet::Fullerene,
+            "4-6" => FaceSet::SquareHexagon,
+            "4-5-6" => FaceSet::SquarePentagonHexagon,
+            "5-6-7" => {
+                let Some(h) = heptagons else {
+                    return Err(
+                        "face set 5-6-7 needs a bound on the heptagons: add --heptagons H, \
+                                e.g. --heptagons 1"
+                            .to_string(),
+                    );
+                };
+                if h > MAX_HEPTAGONS {
+                    return Err(format!(
+                        "--heptagons {h} is too many: at most {MAX_HEPTAGONS} heptagons are supported"
+                    ));
+                }
+                return Ok(FaceSet::PentagonHexagonHeptagon { heptagons: h });
+            }
+            other => {
+                return Err(format!(
+                    "unknown face set '{}': use fullerene, 4-6, 4-5-6 or 5-6-7",
+                    other
+                        .chars()
+                        .filter(|c| !c.is_control())
+                        .collect::<String>()
+                ))
+            }
+        };
+        if heptagons.is_some() {
+            return Err(format!(
+                "--heptagons applies to face set 5-6-7 only, not {}; drop it",
+                set.name()
+            ));
+        }
+        Ok(set)
+    }
+
+    /// The set of a full name as [`FaceSet`]'s `Display` writes it (`5-6-7h2` included), e.g.
+    /// from a file name or an isomer ID.
+    pub fn from_label(label: &str) -> Option<FaceSet> {
+        if let Some(h) = label.strip_prefix("5-6-7h") {
+            let h: u8 = h.parse().ok()?;
+            // Only the written form: "5-6-7h02" or "5-6-7h+2" name no set.
+            return (h <= MAX_HEPTAGONS && label == format!("5-6-7h{h}"))
+                .then_some(FaceSet::PentagonHexagonHeptagon { heptagons: h });
+        }
+        match label {
+            "fullerene" => Some(FaceSet::Fullerene),
+            "4-6" => Some(FaceSet::SquareHexagon),
+            "4-5-6" => Some(FaceSet::SquarePentagonHexagon),
+            _ => None,
+        }
+    }
+
+    /// True if a cage with these face-size counts belongs to the set (sizes allowed and, for
+    /// `5-6-7`, no more heptagons than the bound).
+    pub fn admits(self, counts: &[usize; MAX_FACE + 1]) -> bool {
+        counts
+            .iter()
+            .enumerate()
+            .all(|(size, &n)| n == 0 || self.allows(size as u8))
+            && counts[7] <= usize::from(self.heptagon_bound())
     }
 }
 
 impl fmt::Display for FaceSet {
+    /// The full name, safe in file names and IDs: the family's name, and for `5-6-7` its
+    /// heptagon bound (`5-6-7h2`), since lists with different bounds differ.
     fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
-        f.write_str(self.name())
+        match self {
+            FaceSet::PentagonHexagonHeptagon { heptagons } => write!(f, "5-6-7h{heptagons}"),
+            other => f.write_str(other.name()),
+        }
     }
 }
 
@@ -284,9 +390,25 @@ impl Cage {
         counts
     }
 
-    /// True if every face size belongs to `set`.
+    /// True if the cage belongs to `set`: every face size allowed, and no more heptagons than
+    /// the set's bound.
     pub fn fits(&self, set: FaceSet) -> bool {
-        self.faces.iter().all(|f| set.allows(f.len() as u8))
+        set.admits(&self.face_size_counts())
+    }
+
+    /// Number of edges shared by two faces of `size` (squares for the isolated-square rule).
+    pub fn adjacencies_of(&self, size: usize) -> usize {
+        self.edge_faces
+            .iter()
+            .filter(|[a, b]| {
+                self.faces[*a as usize].len() == size && self.faces[*b as usize].len() == size
+            })
+            .count()
+    }
+
+    /// True if the cage obeys its face set's isolation rule (see [`FaceSet::isolated_size`]).
+    pub fn is_isolated(&self, set: FaceSet) -> bool {
+        self.adjacencies_of(usize::from(set.isolated_size())) == 0
     }
 
     /// Number of edges shared by two pentagons (0 for an isolated-pentagon-rule cage).

@@ -8,6 +8,11 @@
 //! (`C84:23`); the caller then says which list is meant. This module only parses and formats;
 //! looking a number up is left to `enumerate` and `catalogue`.
 //!
+//! Cages of other face sets say their set after the colon, and their isolated list is `iso`
+//! (the set's isolation rule, see [`FaceSet::isolated_size`]): `C24:4-5-6-all-7`,
+//! `C40:5-6-7h1-iso-2`; a 4-6 cage is written as the BN cage it models, `B12N12:4-6-iso-1`
+//! (`C24:4-6-iso-1` is read as the same ID). File stems again put `_` for `:`.
+//!
 //! ```
 //! use cagerank::id::{IsomerId, List};
 //! let id = IsomerId::parse("C84:IPR-23", None).unwrap();
@@ -17,6 +22,7 @@
 //! assert_eq!(IsomerId::parse("C84:23", Some(List::All)).unwrap().to_string(), "C84:all-23");
 //! ```
 
+use crate::cage::FaceSet;
 use std::fmt;
 
 /// Which numbered list an isomer number belongs to.
@@ -62,6 +68,8 @@ impl List {
 /// A numbered isomer: atom count, list and 1-based number in that list.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, PartialOrd, Ord, Hash)]
 pub struct IsomerId {
+    /// The face set whose list is numbered (fullerenes unless the ID names another).
+    pub face_set: FaceSet,
     pub atoms: u32,
     pub list: List,
     pub number: u64,
@@ -122,7 +130,13 @@ pub fn printable(text: &str) -> String {
 
 impl IsomerId {
     pub fn new(atoms: u32, list: List, number: u64) -> IsomerId {
+        IsomerId::of(FaceSet::Fullerene, atoms, list, number)
+    }
+
+    /// An ID in the lists of `face_set`.
+    pub fn of(face_set: FaceSet, atoms: u32, list: List, number: u64) -> IsomerId {
         IsomerId {
+            face_set,
             atoms,
             list,
             number,
@@ -138,12 +152,15 @@ impl IsomerId {
             text: text.to_string(),
         };
         let body = text.trim();
-        let body = body.strip_prefix(['C', 'c']).unwrap_or(body).trim_start();
-        let (size, rest) = body
+        let (formula, rest) = body
             .split_once(':')
             .or_else(|| body.split_once('_'))
             .ok_or_else(malformed)?;
-        let atoms: u32 = parse_digits(size).ok_or_else(malformed)?;
+        let (atoms, boron_nitride) = parse_formula(formula.trim()).ok_or_else(malformed)?;
+        let (face_set, rest) = split_face_set(rest.trim());
+        if boron_nitride && face_set != FaceSet::SquareHexagon {
+            return Err(malformed());
+        }
         let rest = rest.trim();
         let (named, digits) = match split_list(rest) {
             Some((list, digits)) => (Some(list), digits),
@@ -170,18 +187,77 @@ impl IsomerId {
                 })
             }
         };
-        Ok(IsomerId::new(atoms, list, number))
+        Ok(IsomerId::of(face_set, atoms, list, number))
     }
 
     /// The ID with `_` for `:`, safe as a file name on every common file system.
     pub fn file_stem(&self) -> String {
-        format!("C{}_{}-{}", self.atoms, self.list.tag(), self.number)
+        self.to_string().replacen(':', "_", 1)
+    }
+
+    /// The molecular formula the ID starts with: `C84`, or `B12N12` for a 4-6 (BN) cage.
+    pub fn formula(&self) -> String {
+        if self.face_set == FaceSet::SquareHexagon && self.atoms % 2 == 0 {
+            format!("B{0}N{0}", self.atoms / 2)
+        } else {
+            format!("C{}", self.atoms)
+        }
+    }
+
+    /// The list's tag: `IPR`/`all` for fullerenes, `iso`/`all` for the other face sets.
+    pub fn list_tag(&self) -> &'static str {
+        match (self.face_set, self.list) {
+            (FaceSet::Fullerene, list) => list.tag(),
+            (_, List::Ipr) => "iso",
+            (_, List::All) => "all",
+        }
     }
 }
 
 impl fmt::Display for IsomerId {
     fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
-        write!(f, "C{}:{}-{}", self.atoms, self.list.tag(), self.number)
+        if self.face_set == FaceSet::Fullerene {
+            write!(f, "C{}:{}-{}", self.atoms, self.list.tag(), self.number)
+        } else {
+            write!(
+                f,
+                "{}:{}-{}-{}",
+                self.formula(),
+                self.face_set,
+                self.list_tag(),
+                self.number
+            )
+        }
+    }
+}
+
+/// `C84`, `84` or `B12N12` → the atom count, and whether it was written as a BN formula.
+fn parse_formula(text: &str) -> Option<(u32, bool)> {
+    if let Some(rest) = text.strip_prefix(['B', 'b']) {
+        let (b, n) = rest.split_once(['N', 'n'])?;
+        let (b, n): (u32, u32) = (parse_digits(b)?, parse_digits(n)?);
+        return (b == n).then_some((b.checked_add(n)?, true));
+    }
+    let digits = text.strip_prefix(['C', 'c']).unwrap_or(text).trim_start();
+    Some((parse_digits(digits)?, false))
+}
+
+/// A leading face-set label and its `-` (`4-5-6-all-7` → 4-5-6, `all-7`); fullerenes when the
+/// text starts with none.
+fn split_face_set(text: &str) -> (FaceSet, &str) {
+    let label_end = if let Some(bound) = text.strip_prefix("5-6-7h") {
+        bound
+            .find(|c: char| !c.is_ascii_digit())
+            .map(|i| i + "5-6-7h".len())
+    } else {
+        ["4-5-6", "4-6", "fullerene"]
+            .iter()
+            .find(|l| text.starts_with(*l) && text[l.len()..].starts_with('-'))
+            .map(|l| l.len())
+    };
+    match label_end.and_then(|end| Some((FaceSet::from_label(&text[..end])?, end))) {
+        Some((set, end)) => (set, text[end..].strip_prefix('-').unwrap_or(&text[end..])),
+        None => (FaceSet::Fullerene, text),
     }
 }
 
@@ -195,7 +271,7 @@ fn parse_digits<T: std::str::FromStr>(text: &str) -> Option<T> {
 
 /// `IPR-23`, `ipr23`, `all-23` → the list and the number's text.
 fn split_list(text: &str) -> Option<(List, &str)> {
-    for (list, tag) in [(List::Ipr, "ipr"), (List::All, "all")] {
+    for (list, tag) in [(List::Ipr, "ipr"), (List::Ipr, "iso"), (List::All, "all")] {
         if text.len() >= tag.len() && text[..tag.len()].eq_ignore_ascii_case(tag) {
             let rest = &text[tag.len()..];
             return Some((list, rest.strip_prefix('-').unwrap_or(rest)));
@@ -240,6 +316,28 @@ mod tests {
         ));
         let named = IsomerId::parse("C84:IPR-23", Some(List::All)).unwrap();
         assert_eq!(named.list, List::Ipr);
+    }
+
+    #[test]
+    fn other_face_sets_name_their_set_and_bn_cages_their_formula() {
+        let bn = IsomerId::of(FaceSet::SquareHexagon, 24, List::Ipr, 1);
+        assert_eq!(bn.to_string(), "B12N12:4-6-iso-1");
+        assert_eq!(bn.file_stem(), "B12N12_4-6-iso-1");
+        for text in ["B12N12:4-6-iso-1", "C24:4-6-iso-1", "B12N12_4-6-iso-1"] {
+            assert_eq!(IsomerId::parse(text, None).unwrap(), bn, "{text}");
+        }
+        let h = IsomerId::of(
+            FaceSet::PentagonHexagonHeptagon { heptagons: 1 },
+            40,
+            List::All,
+            3,
+        );
+        assert_eq!(h.to_string(), "C40:5-6-7h1-all-3");
+        assert_eq!(IsomerId::parse(&h.to_string(), None).unwrap(), h);
+        let sq = IsomerId::parse("C24:4-5-6-all-7", None).unwrap();
+        assert_eq!(sq.face_set, FaceSet::SquarePentagonHexagon);
+        assert!(IsomerId::parse("B12N12:4-5-6-all-1", None).is_err());
+        assert!(IsomerId::parse("B12N11:4-6-all-1", None).is_err());
     }
 
     #[test]

@@ -168,7 +168,7 @@ pub fn data_file_name(face_set: FaceSet, atoms: u32, ipr: bool, charge: i32) -> 
     } else {
         format!("-q{charge:+}")
     };
-    format!("{}-c{atoms}-{list}{charge}.{DATA_EXT}", face_set.name())
+    format!("{}-c{atoms}-{list}{charge}.{DATA_EXT}", face_set)
 }
 
 /// The data files in a catalogue directory, sorted by name.

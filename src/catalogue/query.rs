@@ -483,16 +483,11 @@ impl Request {
 
 /// A face set by its name (`fullerene`, `4-6`, `4-5-6`).
 pub fn parse_faces(text: &str) -> Result<FaceSet, RequestError> {
-    [
-        FaceSet::Fullerene,
-        FaceSet::SquareHexagon,
-        FaceSet::SquarePentagonHexagon,
-    ]
-    .into_iter()
-    .find(|f| f.name() == text)
-    .ok_or_else(|| {
+    FaceSet::from_label(text.trim()).ok_or_else(|| {
         RequestError::Invalid(format!(
-            "unknown face set '{text}'; use fullerene, 4-6 or 4-5-6"
+            "unknown face set '{}'; use fullerene, 4-6, 4-5-6 or 5-6-7hH (H the heptagon bound \
+             of the run, e.g. 5-6-7h1)",
+            crate::id::printable(text)
         ))
     })
 }

@@ -11,6 +11,7 @@ use super::progress;
 use super::query::catalogue_error;
 use super::sizes::{parse_sizes, Size};
 use super::CliError;
+use cagerank::cage::FaceSet;
 use cagerank::catalogue::{self, made_by, Record, RunInfo, ShardId, Writer};
 use cagerank::enumerate::{self, Found, Isomer, Options, Shard, Spec, Work};
 use cagerank::id::{IsomerId, List};
@@ -76,9 +77,12 @@ pub struct Args {
     #[arg(long)]
     pub all_starts: bool,
     /// Search only spirals starting on a pentagon, also beyond C98 (IPR C120): several times
-    /// faster there, but may miss cages (all C100 then gives 285,913 of 285,914).
+    /// faster there, but may miss cages (all C100 then gives 285,913 of 285,914). With another
+    /// --faces, only spirals starting on the set's smallest face (a completeness check).
     #[arg(long, conflicts_with = "all_starts")]
     pub pentagon_starts: bool,
+    #[command(flatten)]
+    pub faces: super::cages::FacesArg,
     #[command(flatten)]
     pub charge: super::ChargeArg,
     /// Write scored isomers into this catalogue directory (resumable: run the same command again
@@ -89,7 +93,14 @@ pub struct Args {
 }
 
 pub fn run(mut args: Args) -> Result<(), CliError> {
-    let sizes = parse_sizes(&args.sizes)?;
+    let set = args.faces.face_set()?;
+    // For fullerenes --isolated is the isolated-pentagon rule, i.e. --ipr.
+    args.ipr |= set == FaceSet::Fullerene && args.faces.isolated;
+    let sizes = if set == FaceSet::Fullerene {
+        parse_sizes(&args.sizes)?
+    } else {
+        super::cages::parse_sizes(&args.sizes, set)?
+    };
     let cap = enumerate::max_threads();
     if args.threads > cap {
         if !args.quiet {
@@ -111,6 +122,11 @@ pub fn run(mut args: Args) -> Result<(), CliError> {
 }
 
 fn spec_for(args: &Args, atoms: u64) -> Result<Spec, CliError> {
+    let set = args.faces.face_set()?;
+    if set != FaceSet::Fullerene {
+        let isolated = args.faces.isolated;
+        return super::cages::spec(set, atoms, isolated, args.ipr, args.pentagon_starts);
+    }
     let mut spec = Spec::fullerene(atoms, args.ipr).map_err(|e| CliError::usage(e.to_string()))?;
     spec.all_starts = (spec.all_starts || args.all_starts) && !args.pentagon_starts;
     if !spec.spiral_complete() {
@@ -143,6 +159,11 @@ fn report_empty(out: &mut Out, args: &Args, atoms: u64) -> Result<(), CliError> 
 }
 
 fn count_line(args: &Args, atoms: u64, count: u64) -> String {
+    if let Ok(set) = args.faces.face_set() {
+        if set != FaceSet::Fullerene {
+            return super::cages::count_line(args.json, set, atoms, args.faces.isolated, count);
+        }
+    }
     if args.json {
         json!({"atoms": atoms, "ipr": args.ipr, "isomers": count}).to_string()
     } else {
@@ -278,7 +299,12 @@ fn run_size(out: &mut Out, args: &Args, atoms: u64) -> Result<(), CliError> {
         return write_line(out, &count_line(args, atoms, count));
     }
     let table = Table::new(args, &spec);
-    let mut header = (!args.json).then(|| table.header(args, &spec));
+    let other_set = args
+        .faces
+        .face_set()
+        .ok()
+        .filter(|&set| set != FaceSet::Fullerene);
+    let mut header = (!args.json && other_set.is_none()).then(|| table.header(args, &spec));
     let mut count = 0u64;
     let mut failure = None;
     let score = |f: &Found| {
@@ -303,7 +329,9 @@ fn run_size(out: &mut Out, args: &Args, atoms: u64) -> Result<(), CliError> {
                 .map_err(|e| CliError::failed(format!("scoring {}: {e}", iso.spiral)))
                 .and_then(|d| {
                     header.iter().try_for_each(|h| write_line(out, h))?;
-                    let line = if args.json {
+                    let line = if let Some(set) = other_set {
+                        super::cages::isomer_line(args.json, set, atoms, &iso, d)
+                    } else if args.json {
                         json_line(args, &iso, d)
                     } else {
                         table.row(&iso, &d)

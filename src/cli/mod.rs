@@ -1,6 +1,7 @@
 //! Command-line front end: argument parsing (clap derive, the single source of help text) and
 //! printing. No science lives here; every subcommand calls into the library.
 
+mod cages;
 mod derive;
 mod draw;
 mod energy;

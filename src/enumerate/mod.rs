@@ -32,6 +32,7 @@
 //! rejected there, which is why hexagon starts cost several times more (docs/performance.md).
 
 pub mod estimate;
+pub mod faces;
 mod lookup;
 mod store;
 
@@ -563,6 +564,7 @@ impl<'a> Search<'a> {
             FaceSet::Fullerene => 0,
             FaceSet::SquareHexagon => 1,
             FaceSet::SquarePentagonHexagon => 2,
+            FaceSet::PentagonHexagonHeptagon { .. } => 3,
         };
         let header = (r as u32) << 12 | left << 8 | set << 6 | u32::from(self.spec.ipr) << 5;
         let key = if r <= memo.depth && looked_up(r, memo.depth) && self.worth_looking_up(r, memo) {
@@ -679,6 +681,9 @@ impl<'a> Search<'a> {
 /// The units of a run, in spiral order. The cut depth grows until there are at least
 /// [`TARGET_UNITS`] units (or the whole sequence is reached), so the list depends on `spec` only.
 pub fn units(spec: &Spec) -> Vec<Unit> {
+    if spec.face_set != FaceSet::Fullerene {
+        return faces::units(spec);
+    }
     let mut search = Search::new(spec);
     // Catalogues and shards record units by index, so the unit list must stay as it was when
     // they were written: the isolated-pentagon bound, added later, only prunes below the units
@@ -730,6 +735,15 @@ pub fn count_unit(spec: &Spec, unit: &Unit) -> u64 {
 
 /// The unit's first `limit` isomers (kept if `keep`) and how many there were.
 fn run_unit_with(spec: &Spec, unit: &Unit, limit: usize, keep: bool) -> (Vec<Found>, u64) {
+    if spec.face_set != FaceSet::Fullerene {
+        let mut found = faces::run_unit(spec, unit);
+        found.truncate(limit);
+        let count = found.len() as u64;
+        if !keep {
+            found.clear();
+        }
+        return (found, count);
+    }
     store::widen(spec.all_starts);
     let mut search = Search::new(spec);
     let mut used = 0;

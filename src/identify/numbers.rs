@@ -239,6 +239,25 @@ fn locate_with(
     search_other: bool,
     progress: Progress,
 ) -> Result<Option<Located>, NumbersError> {
+    if id.face_set != FaceSet::Fullerene {
+        // Commands that take an ID (show, export, draw, derive, energy) handle fullerenes only
+        // so far; a usage error beats reading the number in the fullerene list.
+        let set = id.face_set;
+        let bound = match set {
+            FaceSet::PentagonHexagonHeptagon { heptagons } => format!(" --heptagons {heptagons}"),
+            _ => String::new(),
+        };
+        return Err(NumbersError::Size(SpiralError::BadAtoms {
+            atoms: u64::from(id.atoms),
+            reason: format!(
+                "{id} is a {} cage, and this command knows fullerene IDs only so far; list it \
+                 with `cagerank enumerate {} --faces {}{bound} --json`",
+                set.name(),
+                id.atoms,
+                set.name()
+            ),
+        }));
+    }
     let spec =
         Spec::fullerene(u64::from(id.atoms), id.list.is_ipr()).map_err(NumbersError::Size)?;
     let from_file = match catalogue {

@@ -47,6 +47,7 @@ impl Shell {
 }
 
 pub mod bonds;
+pub mod boron_nitride;
 pub mod faces;
 pub mod huckel;
 pub mod kekule;

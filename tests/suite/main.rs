@@ -2,6 +2,7 @@
 //! dependencies instead of one per file, which is what made a fresh `cargo test --release` slow.
 //! Each module is one area; run one with `cargo test --release --test suite -- MODULE::`.
 
+mod cages;
 mod catalogue;
 mod catalogue_cli;
 mod cli_enumerate;
