@@ -6,7 +6,7 @@ use super::progress;
 use super::query::catalogue_error;
 use super::sizes::{parse_sizes, Size};
 use super::CliError;
-use cagerank::catalogue::{self, made_by, Record, RunInfo, ShardId, Writer};
+use cagerank::catalogue::{self, made_by, Deal, Record, RunInfo, ShardId, Writer};
 use cagerank::enumerate::{self, Found, Isomer, Options, Shard, Spec};
 use cagerank::score::{self, huckel, Descriptors, ScoreError, Scored};
 use serde_json::json;
@@ -193,6 +193,7 @@ fn write_catalogue(out: &mut Out, args: &Args, spec: &Spec, dir: &Path) -> Resul
         shard: args.shard.map(|s| ShardId {
             index: s.index,
             count: s.count,
+            deal: Deal::Scrambled,
         }),
         made_by: made_by(),
         all_starts: spec.all_starts,
