@@ -5,3 +5,7 @@
 set -euo pipefail
 cd "$(dirname "$0")/.."
 cargo test --release
+
+# A real one-host SLURM cluster (installs slurm-wlm and munge if missing) runs the shipped job
+# scripts for all C60 in 4 tasks and checks the merged bytes, also after a task is rerun.
+bash scripts/slurm/test-cluster.sh

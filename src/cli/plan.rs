@@ -87,6 +87,8 @@ pub fn run(args: Args) -> Result<(), CliError> {
 fn row(e: &Estimate, tasks: u32, threads: u32) -> String {
     let isomers = if e.exact() {
         format!("{:.0} (exact)", e.isomers)
+    } else if e.isomers_published {
+        format!("{:.0} (published)", e.isomers)
     } else {
         format!("{:.0} ± {:.0}", e.isomers, e.isomers_error)
     };
