@@ -85,17 +85,25 @@ pub fn run(args: Args) -> Result<(), CliError> {
 }
 
 fn row(e: &Estimate, tasks: u32, threads: u32) -> String {
+    // One sampled unit gives no spread, so no standard error.
+    let pm = |error: f64| {
+        if error.is_nan() {
+            " ± ?".to_string()
+        } else {
+            format!(" ± {error:.0}")
+        }
+    };
     let isomers = if e.exact() {
         format!("{:.0} (exact)", e.isomers)
     } else if e.isomers_published {
         format!("{:.0} (published)", e.isomers)
     } else {
-        format!("{:.0} ± {:.0}", e.isomers, e.isomers_error)
+        format!("{:.0}{}", e.isomers, pm(e.isomers_error))
     };
     let cpu = if e.exact() {
         format!("{:.1}", e.cpu_seconds)
     } else {
-        format!("{:.1} ± {:.1}", e.cpu_seconds, e.cpu_error)
+        format!("{:.1}{}", e.cpu_seconds, pm(e.cpu_error))
     };
     let per_task = e.cpu_per_task(tasks);
     format!(
