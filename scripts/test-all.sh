@@ -5,4 +5,10 @@
 set -euo pipefail
 cd "$(dirname "$0")/.."
 cargo test --release
+
+# A real one-host SLURM cluster (installs slurm-wlm and munge if missing) runs the shipped job
+# scripts for all C60 in 4 tasks and checks the merged bytes, also after a task is rerun.
+bash scripts/slurm/test-cluster.sh
+
+# The Python package in a fresh virtual environment (installs python3-venv if missing).
 python/test.sh

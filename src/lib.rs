@@ -16,6 +16,7 @@ pub mod export;
 pub mod geometry;
 pub mod id;
 pub mod identify;
+pub mod plan;
 pub mod score;
 pub mod screen;
 pub mod spiral;

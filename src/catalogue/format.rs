@@ -21,9 +21,13 @@ pub const MAGIC: [u8; 8] = *b"\x89CGRCAT\n";
 /// Last bytes of every complete data file.
 pub const END_MAGIC: [u8; 8] = *b"CGRCEND\n";
 /// Layout version of the file itself. Version 2 added `RunInfo::all_starts`, version 3
-/// `RunInfo::charge`; older files are still read (as neutral runs, version 1 also as runs
-/// without hexagon starts).
-pub const FORMAT_VERSION: u16 = 3;
+/// `RunInfo::charge`, version 4 the dealing of a shard (`ShardId::deal`); older files are still
+/// read (as neutral runs, version 1 also as runs without hexagon starts, shards of versions 1
+/// to 3 as dealt round-robin).
+pub const FORMAT_VERSION: u16 = 4;
+/// Whole-run files are still written as version 3: without a shard their header bytes are the
+/// same in both layouts, so a whole run keeps the bytes it had (and older readers read it).
+const WHOLE_RUN_FORMAT_VERSION: u16 = 3;
 /// Version of the record fields and their meaning; bump when a descriptor changes. Schema 2
 /// added the SOMO float column and the open-doublet shell code; schema 1 files still read.
 pub const SCHEMA_VERSION: u16 = 2;
@@ -87,7 +91,12 @@ fn header_bytes(info: &RunInfo) -> Vec<u8> {
     let body = postcard::to_stdvec(info).expect("invariant: run info serializes");
     let mut out = Vec::with_capacity(PRELUDE + body.len() + 4);
     out.extend_from_slice(&MAGIC);
-    out.extend_from_slice(&FORMAT_VERSION.to_le_bytes());
+    let version = if info.shard.is_some() {
+        FORMAT_VERSION
+    } else {
+        WHOLE_RUN_FORMAT_VERSION
+    };
+    out.extend_from_slice(&version.to_le_bytes());
     out.extend_from_slice(&SCHEMA_VERSION.to_le_bytes());
     out.extend_from_slice(&(body.len() as u32).to_le_bytes());
     out.extend_from_slice(&body);
@@ -433,6 +442,23 @@ fn read_header(
     Ok((info, schema, end))
 }
 
+/// A shard as formats 1 to 3 wrote it: units dealt round-robin, no dealing recorded.
+#[derive(Serialize, Deserialize)]
+struct ShardIdV3 {
+    index: u32,
+    count: u32,
+}
+
+impl From<ShardIdV3> for super::ShardId {
+    fn from(old: ShardIdV3) -> super::ShardId {
+        super::ShardId {
+            index: old.index,
+            count: old.count,
+            deal: super::Deal::RoundRobin,
+        }
+    }
+}
+
 /// `RunInfo` as format version 1 wrote it (no `all_starts`).
 #[derive(Serialize, Deserialize)]
 struct RunInfoV1 {
@@ -441,7 +467,7 @@ struct RunInfoV1 {
     ipr: bool,
     unit_count: u32,
     unit_depth: u32,
-    shard: Option<super::ShardId>,
+    shard: Option<ShardIdV3>,
     made_by: String,
 }
 
@@ -453,15 +479,43 @@ struct RunInfoV2 {
     ipr: bool,
     unit_count: u32,
     unit_depth: u32,
-    shard: Option<super::ShardId>,
+    shard: Option<ShardIdV3>,
     made_by: String,
     all_starts: bool,
 }
 
+/// `RunInfo` as format version 3 wrote it (shards without their dealing).
+#[derive(Serialize, Deserialize)]
+struct RunInfoV3 {
+    face_set: crate::cage::FaceSet,
+    atoms: u32,
+    ipr: bool,
+    unit_count: u32,
+    unit_depth: u32,
+    shard: Option<ShardIdV3>,
+    made_by: String,
+    all_starts: bool,
+    charge: i32,
+}
+
 /// Decodes the header's run info as written by file format `format`.
 fn decode_run_info(format: u16, bytes: &[u8]) -> Result<RunInfo, postcard::Error> {
-    if format >= 3 {
+    if format >= 4 {
         return postcard::from_bytes(bytes);
+    }
+    if format == 3 {
+        let v3: RunInfoV3 = postcard::from_bytes(bytes)?;
+        return Ok(RunInfo {
+            face_set: v3.face_set,
+            atoms: v3.atoms,
+            ipr: v3.ipr,
+            unit_count: v3.unit_count,
+            unit_depth: v3.unit_depth,
+            shard: v3.shard.map(Into::into),
+            made_by: v3.made_by,
+            all_starts: v3.all_starts,
+            charge: v3.charge,
+        });
     }
     let v2: RunInfoV2 = if format == 2 {
         postcard::from_bytes(bytes)?
@@ -484,7 +538,7 @@ fn decode_run_info(format: u16, bytes: &[u8]) -> Result<RunInfo, postcard::Error
         ipr: v2.ipr,
         unit_count: v2.unit_count,
         unit_depth: v2.unit_depth,
-        shard: v2.shard,
+        shard: v2.shard.map(Into::into),
         made_by: v2.made_by,
         all_starts: v2.all_starts,
         charge: 0,

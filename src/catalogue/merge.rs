@@ -171,6 +171,15 @@ fn check_coverage(name: &str, files: &[DataFile]) -> Result<(), CatalogueError> 
             f.info.shard.map_or(1, |s| s.count)
         )));
     }
+    let deal = files[0].info.shard.map(|s| s.deal);
+    if let Some(f) = files.iter().find(|f| f.info.shard.map(|s| s.deal) != deal) {
+        return Err(CatalogueError::Merge(format!(
+            "{} and {} deal the units to shards differently (one was written by an older \
+             version, which dealt them round-robin); rerun the older shards with this version",
+            files[0].path().display(),
+            f.path().display()
+        )));
+    }
     let present: Vec<u32> = files
         .iter()
         .filter_map(|f| f.info.shard.map(|s| s.index))
@@ -185,16 +194,20 @@ fn check_coverage(name: &str, files: &[DataFile]) -> Result<(), CatalogueError> 
             missing.join(", ")
         )));
     }
+    let shard = files[0].info.shard.expect("invariant: all sharded");
+    let owners = shard.owners(files[0].info.unit_count);
     for f in files {
-        check_units_complete(f)?;
+        check_units_complete(f, &owners)?;
     }
     Ok(())
 }
 
-/// A shard file must hold exactly the units its shard owns.
-fn check_units_complete(f: &DataFile) -> Result<(), CatalogueError> {
+/// A shard file must hold exactly the units its shard owns (`owners`: the shard of each unit).
+fn check_units_complete(f: &DataFile, owners: &[u32]) -> Result<(), CatalogueError> {
     let shard = f.info.shard.expect("invariant: only shards are checked");
-    let want: Vec<u32> = (0..f.info.unit_count).filter(|&u| shard.owns(u)).collect();
+    let want: Vec<u32> = (0..f.info.unit_count)
+        .filter(|&u| owners[u as usize] == shard.index)
+        .collect();
     let have: Vec<u32> = f.index.units.iter().map(|u| u.0).collect();
     if want != have {
         return Err(CatalogueError::Merge(format!(
@@ -253,12 +266,17 @@ fn write_merged(dest: &Path, whole: &RunInfo, files: Vec<DataFile>) -> Result<u6
         .into_iter()
         .map(|f| (f.info.shard.map_or(1, |s| s.index), Stream::new(f)))
         .collect();
-    let n = streams.len() as u32;
+    // Coverage was checked against these owners, so every unit's shard is among the streams.
+    let owners: Vec<u32> = match streams.values().next().and_then(|s| s.file.info.shard) {
+        Some(shard) => shard.owners(whole.unit_count),
+        None => vec![1; whole.unit_count as usize],
+    };
     let mut out = DataWriter::create(dest, whole)?;
     let mut total = 0;
     for unit in 0..whole.unit_count {
-        let stream = streams
-            .get_mut(&(unit % n + 1))
+        let stream = owners
+            .get(unit as usize)
+            .and_then(|k| streams.get_mut(k))
             .expect("invariant: coverage checked");
         let count = stream.unit_counts.get(&unit).copied().unwrap_or(0);
         for _ in 0..count {

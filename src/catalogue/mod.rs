@@ -71,16 +71,45 @@ pub fn default_write_dir() -> PathBuf {
     }
 }
 
-/// A shard of a run, 1-based "K/N": unit i belongs to shard (i % N) + 1.
+/// A shard of a run, 1-based "K/N", and how the run's units were dealt to the N shards.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, PartialOrd, Ord, Hash, Serialize, Deserialize)]
 pub struct ShardId {
     pub index: u32,
     pub count: u32,
+    /// Format 4 on; older files read as [`Deal::RoundRobin`].
+    pub deal: Deal,
+}
+
+/// How the units of a run are dealt to the shards of a split. Append only: the variant index
+/// is stored in shard headers.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, PartialOrd, Ord, Hash, Serialize, Deserialize)]
+pub enum Deal {
+    /// Unit i to shard (i mod N) + 1: what format 3 and earlier wrote. Still read and merged.
+    RoundRobin,
+    /// Round-robin in a fixed pseudo-random order of the units (`enumerate::deal`): what
+    /// `--shard` writes from format 4 on.
+    Scrambled,
 }
 
 impl ShardId {
-    pub fn owns(self, unit: u32) -> bool {
-        unit % self.count + 1 == self.index
+    /// The shard (1-based) that holds each unit of a run cut into `units` units, under this
+    /// shard's dealing.
+    pub fn owners(self, units: u32) -> Vec<u32> {
+        match self.deal {
+            Deal::RoundRobin => (0..units).map(|u| u % self.count + 1).collect(),
+            Deal::Scrambled => crate::enumerate::deal::owners(units, self.count)
+                .iter()
+                .map(|k| k + 1)
+                .collect(),
+        }
+    }
+
+    /// The units (in increasing order) that this shard holds.
+    pub fn units(self, units: u32) -> Vec<u32> {
+        let owners = self.owners(units);
+        (0..units)
+            .filter(|&u| owners[u as usize] == self.index)
+            .collect()
     }
 }
 
@@ -122,6 +151,16 @@ impl RunInfo {
         }
     }
 
+    /// The search this run is a result of (it decides the unit list).
+    pub fn spec(&self) -> crate::enumerate::Spec {
+        crate::enumerate::Spec {
+            atoms: self.atoms,
+            face_set: self.face_set,
+            ipr: self.ipr,
+            all_starts: self.all_starts,
+        }
+    }
+
     /// File name of this run's data file, e.g. `fullerene-c100-ipr.cgr` or
     /// `fullerene-c80-ipr-q-6.cgr`.
     pub fn file_name(&self) -> String {
@@ -133,12 +172,7 @@ impl RunInfo {
     /// its list may be short.
     pub fn label(&self) -> String {
         let list = if self.ipr { "IPR" } else { "all" };
-        let spec = crate::enumerate::Spec {
-            atoms: self.atoms,
-            face_set: self.face_set,
-            ipr: self.ipr,
-            all_starts: self.all_starts,
-        };
+        let spec = self.spec();
         let starts = if self.all_starts {
             ", all starts"
         } else if !spec.starts_verified() {

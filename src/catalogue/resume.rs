@@ -74,8 +74,9 @@ impl Writer {
             BTreeSet::new()
         } else {
             prepare_work_dir(&work, &info)?;
-            let done = committed_parts(&work, &info)?;
-            units_of(&info).filter(|u| !done.contains_key(u)).collect()
+            let mine = units_of(&info);
+            let done = committed_parts(&work, &info, &mine)?;
+            mine.into_iter().filter(|u| !done.contains_key(u)).collect()
         };
         Ok(Writer {
             info,
@@ -111,7 +112,7 @@ impl Writer {
         let mut seen = BTreeSet::new();
         for &(unit, records) in batch {
             if !self.pending.contains(&unit) || !seen.insert(unit) {
-                let detail = if units_of(&self.info).any(|u| u == unit) {
+                let detail = if units_of(&self.info).contains(&unit) {
                     "was already committed".to_string()
                 } else {
                     format!(
@@ -150,14 +151,15 @@ impl Writer {
                 pending: self.pending.len(),
             });
         }
-        let parts = committed_parts(&self.work, &self.info)?;
+        let mine = units_of(&self.info);
+        let parts = committed_parts(&self.work, &self.info, &mine)?;
         let mut out = DataWriter::create(&self.dest, &self.info)?;
         let mut cache: (Option<PathBuf>, BTreeMap<u32, Vec<Record>>) = (None, BTreeMap::new());
         let mut total = 0u64;
-        for unit in units_of(&self.info) {
+        for &unit in &mine {
             let part = parts.get(&unit).expect("invariant: no unit pending");
             if cache.0.as_ref() != Some(part) {
-                cache = (Some(part.clone()), read_part(part, &self.info)?);
+                cache = (Some(part.clone()), read_part(part, &self.info, &mine)?);
             }
             let records = cache.1.remove(&unit).unwrap_or_default();
             total += records.len() as u64;
@@ -177,8 +179,11 @@ impl Writer {
 }
 
 /// The units a run or shard is responsible for, in increasing order.
-pub fn units_of(info: &RunInfo) -> impl Iterator<Item = u32> + '_ {
-    (0..info.unit_count).filter(move |&u| info.shard.is_none_or(|s| s.owns(u)))
+pub fn units_of(info: &RunInfo) -> BTreeSet<u32> {
+    match info.shard {
+        None => (0..info.unit_count).collect(),
+        Some(s) => s.units(info.unit_count).into_iter().collect(),
+    }
 }
 
 fn existing_run_matches(dest: &Path, info: &RunInfo) -> Result<bool, CatalogueError> {
@@ -292,7 +297,11 @@ fn part_path(work: &Path, first_unit: u32) -> PathBuf {
 /// (atomic rename); one that fails its checksum anyway (disk damage) is removed, so its units
 /// are redone rather than trusted. One that is intact but belongs to another run, or holds a
 /// unit twice, is refused: it was copied in by hand, and deleting it could lose someone's work.
-fn committed_parts(work: &Path, info: &RunInfo) -> Result<BTreeMap<u32, PathBuf>, CatalogueError> {
+fn committed_parts(
+    work: &Path,
+    info: &RunInfo,
+    mine: &BTreeSet<u32>,
+) -> Result<BTreeMap<u32, PathBuf>, CatalogueError> {
     let mut map = BTreeMap::new();
     let mut names = Vec::new();
     for entry in fs::read_dir(work).map_err(|e| CatalogueError::io("list", work, e))? {
@@ -305,7 +314,7 @@ fn committed_parts(work: &Path, info: &RunInfo) -> Result<BTreeMap<u32, PathBuf>
     }
     names.sort();
     for path in names {
-        match read_part(&path, info) {
+        match read_part(&path, info, mine) {
             Ok(units) => {
                 for unit in units.into_keys() {
                     if let Some(other) = map.insert(unit, path.clone()) {
@@ -354,6 +363,7 @@ pub fn check_work_dir(work: &Path) -> Result<(RunInfo, Vec<CatalogueError>), Cat
         });
     }
     let mut seen = BTreeSet::new();
+    let mine = units_of(&info);
     for entry in fs::read_dir(work).map_err(|e| CatalogueError::io("list", work, e))? {
         let path = entry
             .map_err(|e| CatalogueError::io("list", work, e))?
@@ -361,7 +371,7 @@ pub fn check_work_dir(work: &Path) -> Result<(RunInfo, Vec<CatalogueError>), Cat
         if path.extension().is_none_or(|e| e != "part") {
             continue;
         }
-        match read_part(&path, &info) {
+        match read_part(&path, &info, &mine) {
             Ok(units) => {
                 if let Some(u) = units.keys().find(|&&u| !seen.insert(u)) {
                     problems.push(CatalogueError::RunMismatch {
@@ -423,9 +433,13 @@ fn part_bytes(info: &RunInfo, batch: &[(u32, &[Record])]) -> Vec<u8> {
 }
 
 /// Reads a part file of the run `info` back into its units' records. Damage (checksum,
-/// lengths) is `Corrupt`; an intact file of another run, or naming units outside the run or
-/// shard, is `RunMismatch`.
-fn read_part(path: &Path, info: &RunInfo) -> Result<BTreeMap<u32, Vec<Record>>, CatalogueError> {
+/// lengths) is `Corrupt`; an intact file of another run, or naming units outside `mine` (the
+/// run's or shard's units), is `RunMismatch`.
+fn read_part(
+    path: &Path,
+    info: &RunInfo,
+    mine: &BTreeSet<u32>,
+) -> Result<BTreeMap<u32, Vec<Record>>, CatalogueError> {
     let bytes = fs::read(path).map_err(|e| CatalogueError::io("read", path, e))?;
     let corrupt = |d: String| {
         CatalogueError::corrupt(
@@ -468,10 +482,7 @@ fn read_part(path: &Path, info: &RunInfo) -> Result<BTreeMap<u32, Vec<Record>>, 
         });
     }
     let units: Vec<(u32, u64)> = postcard::from_bytes(list).map_err(|e| corrupt(e.to_string()))?;
-    if let Some(&(u, _)) = units
-        .iter()
-        .find(|&&(u, _)| u >= info.unit_count || info.shard.is_some_and(|s| !s.owns(u)))
-    {
+    if let Some(&(u, _)) = units.iter().find(|&&(u, _)| !mine.contains(&u)) {
         return Err(CatalogueError::RunMismatch {
             path: path.to_path_buf(),
             detail: format!("holds unit {u}, which is not a unit of this run or shard; delete it"),

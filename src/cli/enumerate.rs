@@ -12,7 +12,7 @@ use super::query::catalogue_error;
 use super::sizes::{parse_sizes, Size};
 use super::CliError;
 use cagerank::cage::FaceSet;
-use cagerank::catalogue::{self, made_by, Record, RunInfo, ShardId, Writer};
+use cagerank::catalogue::{self, made_by, Deal, Record, RunInfo, ShardId, Writer};
 use cagerank::enumerate::{self, Found, Isomer, Options, Shard, Spec, Work};
 use cagerank::id::{IsomerId, List};
 use cagerank::score::{self, huckel, Descriptors, ScoreError, Scored};
@@ -378,6 +378,7 @@ fn write_catalogue(
         shard: args.shard.map(|s| ShardId {
             index: s.index,
             count: s.count,
+            deal: Deal::Scrambled,
         }),
         made_by: made_by(),
         all_starts: spec.all_starts,

@@ -10,6 +10,7 @@ mod export;
 mod identify;
 mod merge;
 mod output;
+mod plan;
 mod progress;
 mod query;
 mod screen;
@@ -94,6 +95,8 @@ pub enum Command {
     Query(query::Args),
     /// Combine shard catalogues (`--shard K/N` runs) into one.
     Merge(merge::Args),
+    /// Estimate units, isomers, CPU time and memory per task of a cluster run from a short sample.
+    Plan(plan::Args),
     /// What a catalogue holds per size, with descriptor histograms.
     Stats(stats::Args),
     /// Check every file of a catalogue and report damage.
@@ -116,6 +119,7 @@ pub fn run(cli: Cli) -> Result<(), CliError> {
         Command::Show(a) => show::run(a),
         Command::Query(a) => query::run(a),
         Command::Merge(a) => merge::run(a),
+        Command::Plan(a) => plan::run(a),
         Command::Stats(a) => stats::run(a),
         Command::Verify(a) => verify::run(a),
         Command::Export(a) => export::run(a),

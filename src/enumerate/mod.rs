@@ -31,6 +31,7 @@
 //! that share a state are the same start. Each such sequence is therefore wound to its leaf and
 //! rejected there, which is why hexagon starts cost several times more (docs/performance.md).
 
+pub mod deal;
 pub mod estimate;
 pub mod faces;
 mod lookup;
@@ -158,18 +159,12 @@ pub struct Isomer {
     pub unit: u32,
 }
 
-/// Part K of N of a run split across processes or machines (K is 1-based).
+/// Part K of N of a run split across processes or machines (K is 1-based); which units it runs
+/// is decided by [`deal`].
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Hash)]
 pub struct Shard {
     pub index: u32,
     pub count: u32,
-}
-
-impl Shard {
-    /// Units are dealt round-robin, so every shard gets a similar mix of large and small ones.
-    pub fn owns(&self, unit: u32) -> bool {
-        unit % self.count == self.index - 1
-    }
 }
 
 impl FromStr for Shard {
@@ -855,9 +850,17 @@ pub fn enumerate_mapped<R: Send>(
     map: impl Fn(&Found) -> R + Sync,
     mut sink: impl FnMut(Isomer, R) -> ControlFlow<()>,
 ) -> Result<(), EnumerateError> {
-    let mine: Vec<Unit> = units(spec)
+    let all = units(spec);
+    let owners = opts.shard.map(|s| deal::owners(all.len() as u32, s.count));
+    let mine: Vec<Unit> = all
         .into_iter()
-        .filter(|u| opts.shard.is_none_or(|s| s.owns(u.index)))
+        .filter(|u| {
+            opts.shard.is_none_or(|s| {
+                owners
+                    .as_ref()
+                    .is_some_and(|o| o[u.index as usize] + 1 == s.index)
+            })
+        })
         .collect();
     let numbered = opts.shard.is_none();
     let (mut number, mut ipr_number, mut done) = (0u64, 0u64, 0usize);
@@ -901,9 +904,17 @@ pub fn count_run(
     mut progress: impl FnMut(usize, usize),
 ) -> Result<u64, EnumerateError> {
     let pool = pool(opts.threads)?;
-    let mine: Vec<Unit> = units(spec)
+    let all = units(spec);
+    let owners = opts.shard.map(|s| deal::owners(all.len() as u32, s.count));
+    let mine: Vec<Unit> = all
         .into_iter()
-        .filter(|u| opts.shard.is_none_or(|s| s.owns(u.index)))
+        .filter(|u| {
+            opts.shard.is_none_or(|s| {
+                owners
+                    .as_ref()
+                    .is_some_and(|o| o[u.index as usize] + 1 == s.index)
+            })
+        })
         .collect();
     let (mut total, mut done) = (0u64, 0usize);
     progress(0, mine.len());

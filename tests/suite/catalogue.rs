@@ -5,7 +5,7 @@ use cagerank::cage::FaceSet;
 use cagerank::catalogue::format::{DataFile, DataWriter};
 use cagerank::catalogue::record::{POINT_GROUPS, SHELLS};
 use cagerank::catalogue::{
-    self, query, CatalogueError, Filter, PointGroup, Query, Record, RunInfo, ShardId, Writer,
+    self, query, CatalogueError, Deal, Filter, PointGroup, Query, Record, RunInfo, ShardId, Writer,
 };
 use cagerank::score::rank::{RankField, RankKey};
 use num_bigint::BigUint;
@@ -429,7 +429,11 @@ fn three_shards_merge_into_the_single_run_bytes_and_two_are_refused() {
     let shard_dirs: Vec<PathBuf> = (1..=3)
         .map(|k| {
             let d = temp_dir(&format!("shard-{k}"));
-            let shard = Some(ShardId { index: k, count: 3 });
+            let shard = Some(ShardId {
+                index: k,
+                count: 3,
+                deal: Deal::RoundRobin,
+            });
             full_run(&d, run_info(100, false, UNITS, shard));
             d
         })
@@ -459,7 +463,16 @@ fn three_shards_merge_into_the_single_run_bytes_and_two_are_refused() {
     );
 
     let odd = temp_dir("shard-odd");
-    let mut info = run_info(100, false, UNITS, Some(ShardId { index: 3, count: 3 }));
+    let mut info = run_info(
+        100,
+        false,
+        UNITS,
+        Some(ShardId {
+            index: 3,
+            count: 3,
+            deal: Deal::RoundRobin,
+        }),
+    );
     info.made_by = "cagerank 0.0.1".into();
     full_run(&odd, info);
     let mixed = vec![shard_dirs[0].clone(), shard_dirs[1].clone(), odd.clone()];
@@ -818,11 +831,70 @@ fn a_committed_units_file_of_another_run_is_refused_on_resume() {
 }
 
 #[test]
+fn shards_dealt_round_robin_by_older_versions_do_not_mix_with_new_ones() {
+    // Format 3 and earlier dealt unit i to shard (i mod N) + 1; such shards still merge among
+    // themselves (the tests above), but not with shards dealt by the current rule.
+    let base = temp_dir("merge-deals");
+    let a = base.join("a");
+    let b = base.join("b");
+    let shard = |k, deal| {
+        Some(ShardId {
+            index: k,
+            count: 2,
+            deal,
+        })
+    };
+    full_run(&a, run_info(100, false, UNITS, shard(1, Deal::RoundRobin)));
+    full_run(&b, run_info(100, false, UNITS, shard(2, Deal::Scrambled)));
+    let err = catalogue::merge(&[a, b], &base.join("out")).expect_err("mixed dealings");
+    assert!(err.is_user_error());
+    let msg = err.to_string();
+    assert!(
+        msg.contains("round-robin") && msg.contains("a/") && msg.contains("b/"),
+        "{msg}"
+    );
+    let _ = fs::remove_dir_all(&base);
+}
+
+#[test]
+fn scrambled_shards_merge_into_the_single_run_bytes() {
+    let reference = full_run(
+        &temp_dir("scrambled-ref"),
+        run_info(100, false, UNITS, None),
+    );
+    let dirs: Vec<PathBuf> = (1..=4)
+        .map(|k| {
+            let d = temp_dir(&format!("scrambled-{k}"));
+            let shard = Some(ShardId {
+                index: k,
+                count: 4,
+                deal: Deal::Scrambled,
+            });
+            full_run(&d, run_info(100, false, UNITS, shard));
+            d
+        })
+        .collect();
+    let into = temp_dir("scrambled-merged");
+    catalogue::merge(&dirs, &into).expect("merge");
+    let merged = fs::read(into.join("fullerene-c100-all.cgr")).expect("merged file");
+    assert_eq!(merged, reference);
+    for d in dirs.iter().chain([&into]) {
+        let _ = fs::remove_dir_all(d);
+    }
+}
+
+#[test]
 fn shards_of_different_charges_do_not_merge() {
     let base = temp_dir("merge-charges");
     let a = base.join("a");
     let b = base.join("b");
-    let shard = |k| Some(ShardId { index: k, count: 2 });
+    let shard = |k| {
+        Some(ShardId {
+            index: k,
+            count: 2,
+            deal: Deal::RoundRobin,
+        })
+    };
     full_run(&a, charged(run_info(100, false, UNITS, shard(1)), -6));
     full_run(&b, run_info(100, false, UNITS, shard(2)));
     let err = catalogue::merge(&[a, b], &base.join("out")).expect_err("mixed charges");

@@ -1,6 +1,7 @@
 //! The catalogue through the binary: rebuilding part of the shipped catalogue gives the same
 //! bytes, and a run killed with SIGKILL at arbitrary moments resumes to the same bytes.
 
+use cagerank::enumerate::{self, Spec};
 use std::path::{Path, PathBuf};
 use std::process::{Command, Stdio};
 use std::time::Duration;
@@ -102,36 +103,96 @@ fn killed_runs_resume_to_the_same_bytes() {
     let _ = std::fs::remove_dir_all(&dir);
 }
 
-#[test]
-fn shards_merged_through_the_cli_equal_the_single_run() {
-    let dir = scratch("shards");
+/// Runs `size` in `n` shards through the CLI and merges them into `dir/merged`.
+fn shard_and_merge(dir: &Path, size: &str, n: u32) -> (Vec<PathBuf>, std::process::Output) {
     let mut parts = Vec::new();
-    for k in 1..=3 {
+    for k in 1..=n {
         let part = dir.join(format!("part{k}"));
-        let out = enumerate_into(&part, "44", &["--shard", &format!("{k}/3")]);
+        let out = enumerate_into(&part, size, &["--shard", &format!("{k}/{n}")]);
         assert_success(&out);
         parts.push(part);
     }
-    let merged = dir.join("merged");
     let out = bin()
         .arg("merge")
         .args(&parts)
         .arg("--into")
-        .arg(&merged)
+        .arg(dir.join("merged"))
         .output()
         .unwrap();
-    assert_success(&out);
-    let file = "fullerene-c44-all.cgr";
-    assert_eq!(std::fs::read(merged.join(file)).unwrap(), shipped(file));
-    // Two of three shards are refused.
+    (parts, out)
+}
+
+#[test]
+fn shards_merged_through_the_cli_equal_the_single_run() {
+    // The shipped files were written by one uninterrupted run each. Task counts: 3 and 7, which
+    // divide neither C44's unit count nor each other, and more tasks than C28 has units (some
+    // shards are then empty).
+    let c28_units = enumerate::units(&Spec::fullerene(28, false).unwrap()).len() as u32;
+    for (size, n) in [("44", 3), ("44", 7), ("28", c28_units + 2)] {
+        let dir = scratch(&format!("shards-{size}-{n}"));
+        let (parts, out) = shard_and_merge(&dir, size, n);
+        assert_success(&out);
+        let file = format!("fullerene-c{size}-all.cgr");
+        assert_eq!(
+            std::fs::read(dir.join("merged").join(&file)).unwrap(),
+            shipped(&file),
+            "{file} in {n} shards"
+        );
+        // A shard missing is refused on one line that names it.
+        let out = bin()
+            .arg("merge")
+            .args(&parts[1..])
+            .arg("--into")
+            .arg(dir.join("incomplete"))
+            .output()
+            .unwrap();
+        assert_eq!(out.status.code(), Some(2));
+        let err = String::from_utf8_lossy(&out.stderr);
+        assert!(err.contains(&format!("missing shard(s) 1/{n}")), "{err}");
+        assert_eq!(err.trim().lines().count(), 1, "{err}");
+        let _ = std::fs::remove_dir_all(&dir);
+    }
+}
+
+#[test]
+fn shards_of_different_sizes_lists_or_charges_are_refused_by_name() {
+    let dir = scratch("shards-mixed");
+    let a = dir.join("a");
+    let b = dir.join("b");
+    assert_success(&enumerate_into(&a, "40", &["--shard", "1/2"]));
+    // Another charge: its file name differs, so the merge names both files.
+    assert_success(&enumerate_into(
+        &b,
+        "40",
+        &["--shard", "2/2", "--charge", "-2"],
+    ));
     let out = bin()
         .arg("merge")
-        .args(&parts[..2])
+        .args([&a, &b])
         .arg("--into")
-        .arg(dir.join("incomplete"))
+        .arg(dir.join("out"))
         .output()
         .unwrap();
     assert_eq!(out.status.code(), Some(2));
+    let err = String::from_utf8_lossy(&out.stderr);
+    assert!(
+        err.contains("different charges") && err.contains("a/"),
+        "{err}"
+    );
+    assert_eq!(err.trim().lines().count(), 1, "{err}");
+    // Shards of another size give two incomplete runs: each is named with its missing shard.
+    let c = dir.join("c");
+    assert_success(&enumerate_into(&c, "42", &["--shard", "2/2"]));
+    let out = bin()
+        .arg("merge")
+        .args([&a, &c])
+        .arg("--into")
+        .arg(dir.join("out"))
+        .output()
+        .unwrap();
+    assert_eq!(out.status.code(), Some(2));
+    let err = String::from_utf8_lossy(&out.stderr);
+    assert!(err.contains("missing shard(s)"), "{err}");
     let _ = std::fs::remove_dir_all(&dir);
 }
 
