@@ -144,7 +144,7 @@ fn b12n12_is_the_smallest_isolated_square_cage_with_th_symmetry() {
 /// Counts of `scripts/cages_by_insertion.py` (cubic polyhedra built by edge insertion from the
 /// tetrahedron, deduplicated by canonical codes; its committed output).
 fn python_counts() -> Vec<(u64, Vec<u64>)> {
-    let text = include_str!("../scripts/cages_by_insertion.out");
+    let text = include_str!("../../scripts/cages_by_insertion.out");
     text.lines()
         .filter(|l| !l.starts_with('#') && !l.trim().is_empty())
         .map(|l| {
