@@ -69,34 +69,10 @@ fn query_catalogue<'py>(
     for (i, r) in answer.records.iter().enumerate() {
         rows.append(row(py, i + 1, r, somo, energies)?)?;
     }
-    Ok((columns(somo, energies.is_some()), rows))
-}
-
-/// The CSV header of `cagerank query`: `somo` only for odd electron counts, the two energy
-/// columns after `pentagon_adjacencies` when the run has stored energies.
-fn columns(somo: bool, energies: bool) -> Vec<&'static str> {
-    let mut names = vec![
-        "rank",
-        "number",
-        "ipr_number",
-        "point_group",
-        "pentagon_adjacencies",
-        "shell",
-        "hexagon_strain",
-        "gap",
-        "pi_energy",
-        "kekule",
-        "chiral",
-        "nmr",
-        "spiral",
-    ];
-    if somo {
-        names.insert(8, "somo");
-    }
-    if energies {
-        names.splice(5..5, ["relative_energy_kj", "tb_gap_ev"]);
-    }
-    names
+    Ok((
+        cagerank::catalogue::query::columns(somo, energies.is_some()),
+        rows,
+    ))
 }
 
 fn row<'py>(

@@ -762,3 +762,31 @@ impl<'k> Kept<'k> {
         }
     }
 }
+
+/// The columns of a query's table and CSV, in order: `somo` only for runs with an odd electron
+/// count, the two energy columns after `pentagon_adjacencies` when the run has stored energies.
+/// The CLI and the Python package both print these, so they live here once.
+pub fn columns(somo: bool, energies: bool) -> Vec<&'static str> {
+    let mut names = vec![
+        "rank",
+        "number",
+        "ipr_number",
+        "point_group",
+        "pentagon_adjacencies",
+        "shell",
+        "hexagon_strain",
+        "gap",
+        "pi_energy",
+        "kekule",
+        "chiral",
+        "nmr",
+        "spiral",
+    ];
+    if somo {
+        names.insert(8, "somo");
+    }
+    if energies {
+        names.splice(5..5, ["relative_energy_kj", "tb_gap_ev"]);
+    }
+    names
+}

@@ -155,42 +155,12 @@ pub fn run(args: Args) -> Result<(), CliError> {
     out.finish()
 }
 
-/// Column names; `somo` is shown only for runs with an odd electron count.
-const COLUMNS: [&str; 14] = [
-    "rank",
-    "number",
-    "ipr_number",
-    "point_group",
-    "pentagon_adjacencies",
-    "shell",
-    "hexagon_strain",
-    "gap",
-    "somo",
-    "pi_energy",
-    "kekule",
-    "chiral",
-    "nmr",
-    "spiral",
-];
-
-/// Index of the `somo` column in [`COLUMNS`].
-const SOMO: usize = 8;
-
-/// Columns added when the run has stored tight-binding energies.
-const ENERGY_COLUMNS: [&str; 2] = ["relative_energy_kj", "tb_gap_ev"];
-
 fn columns(somo: bool, energy: Option<&StoredEnergies>) -> Vec<&'static str> {
-    let mut names: Vec<&str> = COLUMNS
-        .iter()
-        .enumerate()
-        .filter(|&(i, _)| somo || i != SOMO)
-        .map(|(_, c)| *c)
-        .collect();
-    if energy.is_some() {
-        names.splice(5..5, ENERGY_COLUMNS);
-    }
-    names
+    cagerank::catalogue::query::columns(somo, energy.is_some())
 }
+
+/// Index of the `somo` cell among the cells of [`cells`] before the energy columns go in.
+const SOMO: usize = 8;
 
 /// One row's cells; `missing` is written for values a record does not have ("-" in tables, an
 /// empty cell in CSV so that numeric columns stay numeric).

@@ -850,18 +850,7 @@ pub fn enumerate_mapped<R: Send>(
     map: impl Fn(&Found) -> R + Sync,
     mut sink: impl FnMut(Isomer, R) -> ControlFlow<()>,
 ) -> Result<(), EnumerateError> {
-    let all = units(spec);
-    let owners = opts.shard.map(|s| deal::owners(all.len() as u32, s.count));
-    let mine: Vec<Unit> = all
-        .into_iter()
-        .filter(|u| {
-            opts.shard.is_none_or(|s| {
-                owners
-                    .as_ref()
-                    .is_some_and(|o| o[u.index as usize] + 1 == s.index)
-            })
-        })
-        .collect();
+    let mine = own_units(spec, opts);
     let numbered = opts.shard.is_none();
     let (mut number, mut ipr_number, mut done) = (0u64, 0u64, 0usize);
     run_units_mapped(spec, &mine, opts.threads, map, |window| {
@@ -895,6 +884,18 @@ pub fn count(spec: &Spec, threads: usize) -> Result<u64, EnumerateError> {
     count_run(spec, &opts, |_, _| {})
 }
 
+/// The units this run owns: all of them, or those [`deal`] gives its shard.
+fn own_units(spec: &Spec, opts: &Options) -> Vec<Unit> {
+    let all = units(spec);
+    let Some(shard) = opts.shard else {
+        return all;
+    };
+    let owners = deal::owners(all.len() as u32, shard.count);
+    all.into_iter()
+        .filter(|u| owners[u.index as usize] + 1 == shard.index)
+        .collect()
+}
+
 /// Number of isomers of a run (this shard's units), keeping none of them, so that memory is
 /// the store and the threads' scratch whatever the size. `progress(done, total)` is called
 /// after each window of a few units per thread.
@@ -904,18 +905,7 @@ pub fn count_run(
     mut progress: impl FnMut(usize, usize),
 ) -> Result<u64, EnumerateError> {
     let pool = pool(opts.threads)?;
-    let all = units(spec);
-    let owners = opts.shard.map(|s| deal::owners(all.len() as u32, s.count));
-    let mine: Vec<Unit> = all
-        .into_iter()
-        .filter(|u| {
-            opts.shard.is_none_or(|s| {
-                owners
-                    .as_ref()
-                    .is_some_and(|o| o[u.index as usize] + 1 == s.index)
-            })
-        })
-        .collect();
+    let mine = own_units(spec, opts);
     let (mut total, mut done) = (0u64, 0usize);
     progress(0, mine.len());
     for window in mine.chunks(estimate::COUNT_WINDOW * pool.current_num_threads()) {
