@@ -12,6 +12,8 @@
 #   THREADS     CPUs (threads) per task [1]
 #   IPR         1 for the IPR list only [0]
 #   CHARGE      cage charge Q [0]
+#   FACES       face set: fullerene, 4-6, 4-5-6 or 5-6-7 [fullerene]
+#   HEPTAGONS   heptagon bound, required with FACES=5-6-7
 #   CAGERANK    the cagerank binary, a path every node can run [cagerank]
 #   PARTITION   SLURM partition [the cluster's default]
 #   TIME        time limit per task, SLURM format [the partition's default]
@@ -29,7 +31,7 @@ while [ $# -gt 0 ]; do
     case "$1" in
         --only) only="${2:?--only needs a list such as 3,5}"; shift 2 ;;
         --no-merge) merge=0; shift ;;
-        -h|--help) sed -n '2,27p' "$0" | sed 's/^# \{0,1\}//'; exit 0 ;;
+        -h|--help) sed -n '2,25p' "$0" | sed 's/^# \{0,1\}//'; exit 0 ;;
         *) echo "submit.sh: unknown argument '$1'; see --help" >&2; exit 2 ;;
     esac
 done
@@ -39,6 +41,8 @@ THREADS="${THREADS:-1}"
 mkdir -p "$OUT/logs"
 OUT=$(cd "$OUT" && pwd)
 env_list="SIZES=$SIZES,TASKS=$TASKS,OUT=$OUT,IPR=${IPR:-0},CHARGE=${CHARGE:-0},CAGERANK=${CAGERANK:-cagerank}"
+[ -n "${FACES:-}" ] && env_list+=",FACES=$FACES"
+[ -n "${HEPTAGONS:-}" ] && env_list+=",HEPTAGONS=$HEPTAGONS"
 common=(--parsable --chdir="$OUT/logs")
 [ -n "${PARTITION:-}" ] && common+=(--partition="$PARTITION")
 task_opts=(--cpus-per-task="$THREADS")
