@@ -142,7 +142,8 @@ def test_other_face_sets():
     [
         (lambda: cagerank.count(22), "22 atoms: no fullerene has 22 atoms"),
         (lambda: cagerank.isomers(60, faces="7-8"),
-         "unknown face set '7-8'; use fullerene, 4-6 or 4-5-6"),
+         "unknown face set '7-8'; use fullerene, 4-6, 4-5-6 or 5-6-7hH (H the heptagon bound of "
+         "the run, e.g. 5-6-7h1)"),
         (lambda: cagerank.isomer("C60:IPR-2"),
          "C60 has no isomer 2 in the IPR list; numbers start at 1"),
     ],
