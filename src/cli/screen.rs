@@ -5,7 +5,7 @@
 
 use super::output::{write_line, Out};
 use super::progress;
-use super::query::{catalogue_dir, catalogue_error};
+use super::query::catalogue_error;
 use super::CliError;
 use cagerank::cage::FaceSet;
 use cagerank::catalogue::lock::Lock;
@@ -45,7 +45,8 @@ pub struct Args {
     pub ipr: bool,
     #[command(flatten)]
     pub charge: super::ChargeArg,
-    /// Catalogue directory [default: $CAGERANK_CATALOGUE, else ./catalogues, else the catalogue shipped with this build].
+    /// Catalogue directory, read and written (energies are stored in it) [default:
+    /// $CAGERANK_CATALOGUE, else ./catalogues; never the shipped catalogue of the source tree].
     #[arg(long, value_name = "DIR")]
     pub catalogue: Option<PathBuf>,
     /// Relax at most K candidates from stage 1 [default: 100].
@@ -136,7 +137,10 @@ pub fn run(args: Args) -> Result<(), CliError> {
             args.threads
         );
     }
-    let dir = catalogue_dir(&args.catalogue);
+    let dir = args
+        .catalogue
+        .clone()
+        .unwrap_or_else(cagerank::catalogue::default_write_dir);
     let candidates = screen::select(&dir, &spec).map_err(screen_error)?;
     let _lock = Lock::acquire(&dir).map_err(catalogue_error)?;
     let bar = progress::bar(0, &format!("C{} relaxing", spec.atoms), args.quiet);

@@ -45,13 +45,25 @@ fn queries_from_another_directory_read_the_shipped_catalogue() {
 }
 
 #[test]
-fn enumerate_without_a_directory_writes_here_and_not_into_the_shipped_catalogue() {
+fn writers_without_a_directory_write_here_and_not_into_the_shipped_catalogue() {
     let dir = scratch("write");
     let shipped = PathBuf::from(env!("CARGO_MANIFEST_DIR")).join("catalogues");
     let before: Vec<_> = std::fs::read_dir(&shipped)
         .expect("shipped catalogue")
         .map(|e| e.expect("entry").file_name())
         .collect();
+    // screen stores energies, so it too writes only where it is told or in ./catalogues: here
+    // there is none yet, which is a one-line error, not a write into the source tree.
+    let out = cagerank_in(
+        &dir,
+        &["screen", "--atoms", "60", "--ipr", "--charge", "-6"],
+    );
+    assert_eq!(
+        out.status.code(),
+        Some(2),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
     let out = cagerank_in(&dir, &["enumerate", "24", "--catalogue", "--quiet"]);
     assert!(
         out.status.success(),
