@@ -187,14 +187,7 @@ impl Eigensolver {
         if !converged {
             self.all_vectors(vectors.rb_mut())?;
         }
-        householder::apply_block_householder_sequence_on_the_left_in_place_with_conj(
-            a.rb().submatrix(1, 0, n - 1, n - 1),
-            self.householder.as_ref(),
-            Conj::No,
-            vectors.submatrix_mut(1, 0, n - 1, count),
-            self.par,
-            MemStack::new(&mut self.scratch),
-        );
+        self.back_transform(a, count, vectors);
         Ok(())
     }
 
@@ -256,9 +249,16 @@ impl Eigensolver {
         count: usize,
         vectors: MatMut<'_, f64>,
     ) -> Result<(), SpectrumError> {
-        let n = self.dim;
         let mut vectors = vectors;
         self.all_vectors(vectors.rb_mut())?;
+        self.back_transform(a, count, vectors);
+        Ok(())
+    }
+
+    /// The first `count` eigenvectors of T in `vectors` turned into those of A, with the
+    /// Householder reflectors of the tridiagonalisation stored in `a`.
+    fn back_transform(&mut self, a: MatMut<'_, f64>, count: usize, vectors: MatMut<'_, f64>) {
+        let n = self.dim;
         householder::apply_block_householder_sequence_on_the_left_in_place_with_conj(
             a.rb().submatrix(1, 0, n - 1, n - 1),
             self.householder.as_ref(),
@@ -267,7 +267,6 @@ impl Eigensolver {
             self.par,
             MemStack::new(&mut self.scratch),
         );
-        Ok(())
     }
 }
 
