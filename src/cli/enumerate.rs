@@ -101,16 +101,7 @@ pub fn run(mut args: Args) -> Result<(), CliError> {
     } else {
         super::cages::parse_sizes(&args.sizes, set)?
     };
-    let cap = enumerate::max_threads();
-    if args.threads > cap {
-        if !args.quiet {
-            eprintln!(
-                "cagerank: note: --threads {} capped to {cap}, the cores this machine offers; more threads would only share them",
-                args.threads
-            );
-        }
-        args.threads = cap;
-    }
+    args.threads = super::capped_threads(args.threads, args.quiet);
     let mut out = Out::stdout();
     for size in sizes {
         match size {

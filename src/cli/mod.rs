@@ -112,6 +112,21 @@ pub enum Command {
     Derive(derive::Args),
 }
 
+/// `requested` worker threads capped at the cores this process may use (0 stays 0: one per
+/// core), with a note on stderr unless `quiet`: more threads would only share the cores.
+pub fn capped_threads(requested: usize, quiet: bool) -> usize {
+    let cap = cagerank::enumerate::max_threads();
+    if requested <= cap {
+        return requested;
+    }
+    if !quiet {
+        eprintln!(
+            "cagerank: note: --threads {requested} capped to {cap}, the cores this machine offers; more threads would only share them"
+        );
+    }
+    cap
+}
+
 pub fn run(cli: Cli) -> Result<(), CliError> {
     match cli.command {
         Command::Enumerate(a) => enumerate::run(a),

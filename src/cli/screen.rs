@@ -130,13 +130,7 @@ fn spec_of(args: &Args) -> Result<ScreenSpec, CliError> {
 
 pub fn run(args: Args) -> Result<(), CliError> {
     let spec = spec_of(&args)?;
-    let cap = cagerank::enumerate::max_threads();
-    if args.threads > cap && !args.quiet {
-        eprintln!(
-            "cagerank: note: --threads {} capped to {cap}, the cores this machine offers; more threads would only share them",
-            args.threads
-        );
-    }
+    let threads = super::capped_threads(args.threads, args.quiet);
     let dir = args
         .catalogue
         .clone()
@@ -144,12 +138,11 @@ pub fn run(args: Args) -> Result<(), CliError> {
     let candidates = screen::select(&dir, &spec).map_err(screen_error)?;
     let _lock = Lock::acquire(&dir).map_err(catalogue_error)?;
     let bar = progress::bar(0, &format!("C{} relaxing", spec.atoms), args.quiet);
-    let outcome =
-        screen::relax_candidates(&dir, &spec, &candidates, args.threads, &|done, total| {
-            bar.set_length(total as u64);
-            bar.set_position(done as u64);
-        })
-        .map_err(screen_error)?;
+    let outcome = screen::relax_candidates(&dir, &spec, &candidates, threads, &|done, total| {
+        bar.set_length(total as u64);
+        bar.set_position(done as u64);
+    })
+    .map_err(screen_error)?;
     bar.finish_and_clear();
     if !args.quiet {
         eprintln!(
