@@ -1,5 +1,5 @@
 //! Catalogue benchmarks: bytes per C100 record on disk (real spirals and real scores) and
-//! query scan speed in records per second. Run with `cargo bench --bench catalogue`; figures
+//! query scan speed in records per second. Run with `cargo bench -p cagerank-benches --bench catalogue`; figures
 //! go to docs/performance.md.
 
 use cagerank::cage::FaceSet;

@@ -3,7 +3,7 @@
 //! listing C60H4 without scoring, one pattern's score (Kekulé count + Hückel levels), and the
 //! exact Burnside counts of C60X10 on atoms and on bonds.
 //!
-//! Run with `cargo bench --bench derivative`.
+//! Run with `cargo bench -p cagerank-benches --bench derivative`.
 
 use cagerank::derivative::orbits::Search;
 use cagerank::derivative::score::Scorer;

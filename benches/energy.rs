@@ -11,7 +11,7 @@
 //!   the force-field geometry that it builds first.
 //!
 //! Targets: C84 evaluation <= 15 ms and C84 relaxation <= 0.6 s on one core.
-//! Run with `cargo bench --bench energy` (or `-- side-by-side` for the comparison alone).
+//! Run with `cargo bench -p cagerank-benches --bench energy` (or `-- side-by-side` for the comparison alone).
 
 use cagerank::cage::Cage;
 use cagerank::energy::{self, Evaluator, Settings};

@@ -1,7 +1,7 @@
 //! Cost of building a relaxed geometry (topological coordinates + force-field L-BFGS) for C60,
 //! a C100 and two C500s, one elongated and one near-spherical. Targets from issue 5:
 //! C100 <= 50 ms, C500 <= 2 s.
-//! Run with `cargo bench --bench geometry`.
+//! Run with `cargo bench -p cagerank-benches --bench geometry`.
 
 use cagerank::enumerate::{find_by_number, Spec};
 use cagerank::geometry;

@@ -3,7 +3,7 @@
 //! descriptor set, and the Hückel gap + Kekulé count that `scripts/peer-compare.sh` times in
 //! numpy/networkx on the same isomers.
 //!
-//! Run with `cargo bench --bench score`; figures go to docs/performance.md.
+//! Run with `cargo bench -p cagerank-benches --bench score`; figures go to docs/performance.md.
 
 use cagerank::cage::Cage;
 use cagerank::enumerate::{self, Spec};

@@ -18,4 +18,4 @@ for line in sys.stdin:
 echo "python reference (numpy $(python3 -c 'import numpy; print(numpy.__version__)'), networkx $(python3 -c 'import networkx; print(networkx.__version__)')):"
 python3 scripts/reference_huckel_kekule.py --spirals "$work/spirals.txt" >"$work/reference.jsonl"
 echo "cagerank (criterion, per 1,000 isomers; divide by 1,000 for per isomer):"
-cargo bench --bench score -- "first 1000 C100 isomers/Hückel" 2>&1 | grep -E "time:|thrpt:" || true
+cargo bench -p cagerank-benches --bench score -- "first 1000 C100 isomers/Hückel" 2>&1 | grep -E "time:|thrpt:" || true

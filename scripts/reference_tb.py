@@ -23,11 +23,11 @@ committed start geometries:
       memory 10) and the analytic gradient of `evaluate_pairs`, stopped by a callback on the
       same force criterion as cagerank (scipy's own ftol and gtol tests switched off so they
       neither stop it early nor late); best and median of 3, with iterations and evaluations.
-Run it on one core, as `cargo bench --bench energy` runs the Rust side:
+Run it on one core, as `cargo bench -p cagerank-benches --bench energy` runs the Rust side:
 
     OPENBLAS_NUM_THREADS=1 OMP_NUM_THREADS=1 python3 scripts/reference_tb.py --time
 
-`--compare` first runs the matching Rust benchmarks (`cargo bench --bench energy --
+`--compare` first runs the matching Rust benchmarks (`cargo bench -p cagerank-benches --bench energy --
 side-by-side`, CPU time, one thread) and then the numpy timings, and prints both with their
 ratios, so both sides are measured in one run under the same machine load.
 
@@ -318,7 +318,7 @@ def rust_side():
     import re
     import subprocess
     root = DATA.parent.parent.parent
-    run = subprocess.run(["cargo", "bench", "--bench", "energy", "--", "side-by-side"],
+    run = subprocess.run(["cargo", "bench", "-p", "cagerank-benches", "--bench", "energy", "--", "side-by-side"],
                          cwd=root, capture_output=True, text=True, check=True)
     counts = {}
     for m in re.finditer(r"relax (\S+): (\d+) iterations, (\d+) evaluations, E = (\S+) eV",
