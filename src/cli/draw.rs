@@ -158,7 +158,7 @@ fn isomer_picture(args: &Args, dir: Option<&Path>) -> Result<Picture, CliError> 
         if let Some(n) = n.filter(|_| list != id.list) {
             title.push_str(&format!(
                 " = {}",
-                cagerank::id::IsomerId::new(id.atoms, list, n)
+                cagerank::id::IsomerId::of(id.face_set, id.atoms, list, n)
             ));
         }
     }
