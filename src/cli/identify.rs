@@ -313,12 +313,17 @@ fn text_block(
     charge: i32,
 ) -> Vec<String> {
     let atoms = id.cage.atoms();
+    let bn = bn_values(id);
+    // A BN cage's symmetry is that of the coloured cage (B12N12: Th, its bare graph Oh).
+    let group = bn
+        .as_ref()
+        .map_or(d.point_group.name(), |(group, _)| group.clone());
     let mut lines = vec![
         format!(
             "{}: {}  {}",
             label.text(),
             id_text(id.face_set, atoms, numbers),
-            d.point_group
+            group
         ),
         format!("  canonical spiral      {spiral}"),
         cage_line(&id.cage, id.ignored),
@@ -335,8 +340,8 @@ fn text_block(
             id.formula(),
             id.cage.adjacencies_of(4)
         ));
-        if let Some(bn) = bn_line(id) {
-            lines.push(bn);
+        if let Some((_, line)) = bn {
+            lines.push(line);
         }
     }
     lines.extend([
@@ -370,9 +375,10 @@ fn text_block(
     lines
 }
 
-/// The BN cage's own symmetry and 11B/15N patterns, for a 4-6 cage whose B and N alternate
-/// (the colouring's classes follow the file: boron where the file has boron).
-fn bn_line(id: &Identity) -> Option<String> {
+/// The BN cage's point group and a line with its symmetry and 11B/15N patterns, for a 4-6 cage
+/// whose B and N alternate (the colouring's classes follow the file: boron where the file has
+/// boron).
+fn bn_values(id: &Identity) -> Option<(String, String)> {
     if !(id.face_set == FaceSet::SquareHexagon && id.is_boron_nitride()) {
         return None;
     }
@@ -384,13 +390,15 @@ fn bn_line(id: &Identity) -> Option<String> {
     } else {
         (&bn.nitrogen_nmr, &bn.boron_nmr)
     };
-    Some(format!(
-        "  BN cage               {}, {} automorphisms; 11B {}; 15N {}",
+    let line = format!(
+        "  BN cage               {}, {} automorphisms (bare cage {}); 11B {}; 15N {}",
         bn.point_group.name(),
         bn.automorphisms,
+        bn.cage_point_group.name(),
         nmr_text(boron),
         nmr_text(nitrogen)
-    ))
+    );
+    Some((bn.point_group.name(), line))
 }
 
 fn cage_line(cage: &Cage, ignored: usize) -> String {
