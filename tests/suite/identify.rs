@@ -489,8 +489,8 @@ fn wrong_c20() -> impl Strategy<Value = String> {
                 atoms.push(("C".into(), p.map(|x| x * (r + 1.5) / r)));
                 count += 1;
             }
-            // A non-carbon element.
-            3 => atoms[atom].0 = ["N", "B", "Si"][k % 3].to_string(),
+            // An element that is not a cage atom (C, B and N are: doped and BN cages).
+            3 => atoms[atom].0 = ["O", "P", "Si"][k % 3].to_string(),
             // A wrong atom count in the header (never the true one).
             _ => count = (20 + if delta >= 0 { delta + 1 } else { delta }) as usize,
         }
