@@ -18,6 +18,7 @@ use super::format::DataFile;
 use super::record::{shell_code, shell_from_code, shell_from_name, PointGroup, Record};
 use super::{data_file_name, CatalogueError};
 use crate::cage::FaceSet;
+use crate::score::boron_nitride;
 pub use crate::score::rank::RankKey;
 use crate::score::rank::{self, default_keys, parse_keys, RankField, RankFields};
 use crate::score::{nmr, Shell};
@@ -346,8 +347,59 @@ fn nearest_fullerene_size(atoms: u32) -> u32 {
     }
 }
 
-/// Runs a query: matching records, best first, numbered, at most `top`.
+/// Runs a query: matching records, best first, numbered, at most `top`. Without rank keys a
+/// fullerene list is ranked by [`default_keys`] and a list of another face set by that set's
+/// documented order ([`boron_nitride::default_order`]).
 pub fn query(dir: &Path, q: &Query) -> Result<Vec<Record>, CatalogueError> {
+    if q.face_set != FaceSet::Fullerene && q.rank_by.is_empty() {
+        return query_in_set_order(dir, q);
+    }
+    query_by_keys(dir, q)
+}
+
+/// A face-set list in its set's default order: every matching record in spiral order, its
+/// ranking facts (square or pentagon contacts and heptagons from the wound cage; the gap from
+/// the record, or the BN gap of a 4-6 cage computed here), a stable sort (ties keep spiral
+/// order), then `top`. These lists are small (all 4-5-6 cages of 32 atoms: 374), so holding
+/// them whole is cheap.
+fn query_in_set_order(dir: &Path, q: &Query) -> Result<Vec<Record>, CatalogueError> {
+    let by_spiral = Query {
+        rank_by: vec![RankKey {
+            field: RankField::Spiral,
+            descending: false,
+        }],
+        top: None,
+        ..q.clone()
+    };
+    let records = query_by_keys(dir, &by_spiral)?;
+    let mut facts = Vec::with_capacity(records.len());
+    for r in &records {
+        let spiral = r.spiral().map_err(|e| {
+            CatalogueError::corrupt(
+                &dir.join(data_file_name(q.face_set, q.atoms, q.ipr, q.charge)),
+                crate::catalogue::Place::Index,
+                format!("a record does not wind: {e}"),
+            )
+        })?;
+        let fact = boron_nitride::facts_of_spiral(&spiral, q.face_set, f64::from(r.gap)).unwrap_or(
+            boron_nitride::RankFacts {
+                isolated_adjacencies: u32::MAX,
+                heptagons: u32::MAX,
+                gap: f64::NEG_INFINITY,
+            },
+        );
+        facts.push(fact);
+    }
+    let order = boron_nitride::ranked_order(q.face_set, &facts);
+    let mut slots: Vec<Option<Record>> = records.into_iter().map(Some).collect();
+    Ok(order
+        .into_iter()
+        .take(q.top.unwrap_or(usize::MAX))
+        .filter_map(|i| slots[i].take())
+        .collect())
+}
+
+fn query_by_keys(dir: &Path, q: &Query) -> Result<Vec<Record>, CatalogueError> {
     let (mut file, ipr_only) = choose_file(dir, q)?;
     let filter = Filter {
         ipr_only: ipr_only || q.filter.ipr_only,

@@ -19,7 +19,8 @@ use std::path::{Path, PathBuf};
 
 #[derive(clap::ValueEnum, Clone, Copy, Debug)]
 pub enum ColourArg {
-    /// Pentagons filled, hexagons pale.
+    /// Rings filled by size: squares, pentagons, hexagons and heptagons each in their own
+    /// colour, with a legend of the sizes present.
     Faces,
     /// Bonds coloured and thickened by Pauling bond order.
     BondOrders,
@@ -36,7 +37,8 @@ pub enum OuterArg {
 /// Draw a Schlegel diagram (the cage seen through one face) as SVG or PNG.
 #[derive(clap::Args, Debug)]
 pub struct Args {
-    /// The isomer, e.g. C84:IPR-23 or C84:all-51591; a bare C84:23 is in the IPR list with
+    /// The isomer, e.g. C84:IPR-23, C84:all-51591, B12N12:4-6-iso-1 or C32:5-6-7h1-all-5; a
+    /// bare C84:23 is in the IPR list with
     /// --ipr, else in the complete list. A pattern ID such as C60:IPR-1+2H:5 draws the parent
     /// with the derivative's sites marked (atoms, or bonds for CH2 bridges).
     #[arg(value_name = "ID")]
@@ -158,7 +160,7 @@ fn isomer_picture(args: &Args, dir: Option<&Path>) -> Result<Picture, CliError> 
         if let Some(n) = n.filter(|_| list != id.list) {
             title.push_str(&format!(
                 " = {}",
-                cagerank::id::IsomerId::new(id.atoms, list, n)
+                cagerank::id::IsomerId::of(id.face_set, id.atoms, list, n)
             ));
         }
     }

@@ -19,7 +19,7 @@ use cagerank::enumerate::{self, Spec};
 use cagerank::export::{self, deck, Entry, Format, Numbers, TightBinding, WriteOptions, CAUTION};
 use cagerank::id::{IdError, IsomerId, List};
 use cagerank::identify::numbers::{self, Located};
-use cagerank::score::{self, rank, Scored};
+use cagerank::score::{self, boron_nitride, rank, Scored};
 use cagerank::screen::{self, Candidates, ScreenSpec};
 use cagerank::spiral::Spiral;
 use std::path::{Path, PathBuf};
@@ -31,18 +31,23 @@ pub struct Args {
     /// catalogue when it holds the list, else enumerate and score here).
     #[arg(long, value_name = "DIR")]
     pub catalogue: Option<PathBuf>,
-    /// Cage size (number of carbon atoms); needed with --top.
+    /// Cage size (number of atoms); needed with --top.
     #[arg(long, value_name = "N")]
     pub atoms: Option<u64>,
+    /// With --top: the face set and isolation rule of the list (4-6 cages are written as BN
+    /// cages with B and N atoms, geometry from the carbon force field).
+    #[command(flatten)]
+    pub faces: super::cages::FacesArg,
     /// Use the isolated-pentagon list: bare IDs and the top K refer to IPR isomers.
     #[arg(long)]
     pub ipr: bool,
     /// Export the K best-ranked isomers of the size (K >= 1).
     #[arg(long, value_name = "K", conflicts_with = "ids")]
     pub top: Option<usize>,
-    /// Export these isomers, e.g. C84:IPR-22,C84:IPR-23 or C84:all-51591, or derivatives by
-    /// pattern ID, e.g. C60:IPR-1+2H:5 (see `cagerank derive`); a bare C84:23 is read in the
-    /// IPR list with --ipr, else in the complete list.
+    /// Export these isomers, e.g. C84:IPR-22,C84:IPR-23 or C84:all-51591, cages of other face
+    /// sets, e.g. B12N12:4-6-iso-1 or C24:4-5-6-all-7, or derivatives by pattern ID, e.g.
+    /// C60:IPR-1+2H:5 (see `cagerank derive`); a bare C84:23 is read in the IPR list with
+    /// --ipr, else in the complete list.
     #[arg(long, value_name = "IDS")]
     pub ids: Option<String>,
     #[command(flatten)]
@@ -120,7 +125,9 @@ pub fn run(args: Args) -> Result<(), CliError> {
         };
         let mut entry =
             export::prepare(*id, spiral, *numbers, args.charge.charge).map_err(|e| match e {
-                export::ExportError::Score(_) => CliError::usage(e.to_string()),
+                export::ExportError::Score(_) | export::ExportError::BoronNitride { .. } => {
+                    CliError::usage(e.to_string())
+                }
                 _ => CliError::failed(e.to_string()),
             })?;
         if let Some(dir) = &energy_dir {
@@ -179,8 +186,16 @@ fn shortlist(args: &Args) -> Result<Vec<Pick>, CliError> {
             let atoms = args
                 .atoms
                 .ok_or_else(|| CliError::usage("--top needs --atoms N"))?;
-            let spec =
-                Spec::fullerene(atoms, args.ipr).map_err(|e| CliError::usage(e.to_string()))?;
+            let set = args.faces.face_set()?;
+            if set != FaceSet::Fullerene {
+                let spec = super::cages::spec(set, atoms, args.faces.isolated, args.ipr, false)?;
+                return match catalogue_for(args, &spec) {
+                    Some(dir) => cages_from_catalogue(&dir, &spec, k, args.charge.charge),
+                    None => cages_by_enumeration(&spec, k),
+                };
+            }
+            let ipr = args.ipr || args.faces.isolated;
+            let spec = Spec::fullerene(atoms, ipr).map_err(|e| CliError::usage(e.to_string()))?;
             match catalogue_for(args, &spec) {
                 Some(dir) => from_catalogue(&dir, &spec, k, args.charge.charge),
                 None => by_enumeration(&spec, k, args.charge.charge),
@@ -198,7 +213,7 @@ fn catalogue_for(args: &Args, spec: &Spec) -> Option<PathBuf> {
         return Some(dir.clone());
     }
     let dir = catalogue::default_dir();
-    let file = dir.join(data_file_name(FaceSet::Fullerene, spec.atoms, spec.ipr, 0));
+    let file = dir.join(data_file_name(spec.face_set, spec.atoms, spec.ipr, 0));
     file.is_file().then(|| {
         eprintln!(
             "cagerank: note: taking the top K from the catalogue in {}",
@@ -246,7 +261,9 @@ pub fn locate(
     };
     bar.finish();
     match found.map_err(|e| match e {
-        numbers::NumbersError::Size(e) => CliError::usage(e.to_string()),
+        numbers::NumbersError::Size(_) | numbers::NumbersError::CageSize(_) => {
+            CliError::usage(e.to_string())
+        }
         other => CliError::failed(other.to_string()),
     })? {
         Some(Located { spiral, numbers }) => Ok((
@@ -256,6 +273,21 @@ pub fn locate(
                 ipr_number: numbers.ipr.listed(),
             },
         )),
+        None if id.face_set != FaceSet::Fullerene => Err(CliError::usage(format!(
+            "{} ({}) has no isomer {} in the {} list; numbers start at 1 and end at the count \
+             that `cagerank enumerate {} --faces {}{} --count-only` reports",
+            id.formula(),
+            id.face_set,
+            id.number,
+            if id.list.is_ipr() {
+                "isolated"
+            } else {
+                "complete"
+            },
+            id.atoms,
+            id.face_set.name(),
+            enumerate_flags(id)
+        ))),
         None => Err(CliError::usage(format!(
             "C{} has no isomer {} in the {}; numbers start at 1 and end at the count that \
              `cagerank enumerate --count-only {}{}` reports",
@@ -266,6 +298,19 @@ pub fn locate(
             if id.list.is_ipr() { " --ipr" } else { "" }
         ))),
     }
+}
+
+/// The `enumerate` flags after `--faces SET` that list `id`'s list: the heptagon bound and
+/// `--isolated`.
+fn enumerate_flags(id: IsomerId) -> String {
+    let mut flags = String::new();
+    if let FaceSet::PentagonHexagonHeptagon { heptagons } = id.face_set {
+        flags.push_str(&format!(" --heptagons {heptagons}"));
+    }
+    if id.list.is_ipr() {
+        flags.push_str(" --isolated");
+    }
+    flags
 }
 
 /// A progress bar that appears only once a search reports progress, so a catalogue lookup
@@ -417,7 +462,89 @@ fn id_in(spec: &Spec, numbers: Numbers) -> Option<IsomerId> {
     } else {
         numbers.number
     };
-    Some(IsomerId::new(spec.atoms, list, n?))
+    Some(IsomerId::of(spec.face_set, spec.atoms, list, n?))
+}
+
+/// The top K of a face-set catalogue, in the set's default order (`catalogue::query` ranks
+/// non-fullerene lists by `score::boron_nitride::default_order` when no keys are given).
+fn cages_from_catalogue(
+    dir: &Path,
+    spec: &Spec,
+    k: usize,
+    charge: i32,
+) -> Result<Vec<Pick>, CliError> {
+    if charge != 0 {
+        return Err(CliError::usage(
+            "face-set catalogues are scored neutral; leave out --charge with --faces",
+        ));
+    }
+    let q = Query {
+        atoms: spec.atoms,
+        face_set: spec.face_set,
+        ipr: spec.ipr,
+        charge: 0,
+        filter: Filter::default(),
+        rank_by: Vec::new(),
+        top: Some(k),
+    };
+    let records = query(dir, &q).map_err(super::query::catalogue_error)?;
+    records
+        .iter()
+        .map(|r| {
+            let spiral = r
+                .spiral()
+                .map_err(|e| CliError::failed(format!("damaged catalogue record: {e}")))?;
+            let numbers = Numbers {
+                number: r.number,
+                ipr_number: r.ipr_number,
+            };
+            let id = id_in(spec, numbers).ok_or_else(|| {
+                CliError::usage(format!(
+                    "the catalogue in {} holds this list only as shards, whose records have no \
+                     isomer numbers; merge the shards first (cagerank merge)",
+                    dir.display()
+                ))
+            })?;
+            Ok((id, spiral, numbers))
+        })
+        .collect()
+}
+
+/// Enumerates a face-set list here, ranks it in the set's default order
+/// (`score::boron_nitride::default_order`) and keeps the K best.
+fn cages_by_enumeration(spec: &Spec, k: usize) -> Result<Vec<Pick>, CliError> {
+    let mut isomers = Vec::new();
+    enumerate::enumerate(
+        spec,
+        &enumerate::Options::default(),
+        |_, _| {},
+        |iso| isomers.push(iso),
+    )
+    .map_err(|e| CliError::failed(e.to_string()))?;
+    let spirals: Vec<Spiral> = isomers.iter().map(|i| i.spiral.clone()).collect();
+    let mut facts = Vec::with_capacity(spirals.len());
+    for (spiral, d) in spirals.iter().zip(score::describe_all(&spirals, 0)) {
+        let d = d.map_err(|e| CliError::failed(e.to_string()))?;
+        facts.push(
+            boron_nitride::facts_of_spiral(spiral, spec.face_set, d.gap).ok_or_else(|| {
+                CliError::failed("an enumerated 4-6 cage is not a BN cage (internal error)")
+            })?,
+        );
+    }
+    boron_nitride::ranked_order(spec.face_set, &facts)
+        .into_iter()
+        .take(k)
+        .map(|i| {
+            let numbers = Numbers {
+                number: isomers[i].number,
+                ipr_number: isomers[i].ipr_number,
+            };
+            let id = id_in(spec, numbers).ok_or_else(|| {
+                CliError::failed("an enumerated isomer has no number (internal inconsistency)")
+            })?;
+            Ok((id, isomers[i].spiral.clone(), numbers))
+        })
+        .collect()
 }
 
 /// The top K from a catalogue: by stored tight-binding energy when a screen of this size, list
@@ -491,6 +618,10 @@ fn from_catalogue(dir: &Path, spec: &Spec, k: usize, charge: i32) -> Result<Vec<
 /// Replaces the force-field geometry by the tight-binding one where a screen of the entry's
 /// list and charge stored it in `dir`.
 fn attach_tight_binding(entry: &mut Entry, dir: &Path) -> Result<(), CliError> {
+    if entry.id.face_set != FaceSet::Fullerene {
+        // The tight-binding screen runs for fullerenes only.
+        return Ok(());
+    }
     let key = EnergyHeader {
         face_set: FaceSet::Fullerene,
         atoms: entry.id.atoms,

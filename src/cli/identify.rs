@@ -2,19 +2,20 @@
 //!
 //! Reads the file, asks `identify` for each structure's cage and canonical spiral, the isomer
 //! numbers (`identify::numbers`) and the descriptors (`score`), and prints a block (or one JSON
-//! line) per structure. The science lives in the library.
+//! line) per structure. Cages of other face sets (B/N or carbon) print their face-set IDs
+//! (`B12N12:4-6-all-3 = B12N12:4-6-iso-1`). The science lives in the library.
 
 use super::export::LazyBar;
 use super::output::{write_line, Out};
 use super::show::{nmr_text, symmetry_text};
 use super::CliError;
 use cagerank::automorphism;
-use cagerank::cage::Cage;
+use cagerank::cage::{Cage, FaceSet};
 use cagerank::catalogue;
 use cagerank::id::{IsomerId, List};
 use cagerank::identify::numbers::{self, Number, Numbers};
 use cagerank::identify::{self, Format, Identity, Options, Structure};
-use cagerank::score::{self, huckel, kekule, symmetry, Descriptors};
+use cagerank::score::{self, boron_nitride, huckel, kekule, symmetry, Descriptors};
 use cagerank::spiral::Spiral;
 use serde_json::{json, Map, Value};
 use std::path::PathBuf;
@@ -191,9 +192,10 @@ fn report(out: &mut Out, label: &Label, id: &Identity, args: &Args) -> Result<()
             .clone()
             .or_else(|| Some(catalogue::default_dir()).filter(|d| d.is_dir()));
         let mut bar = LazyBar::new(format!("numbering C{}", id.cage.atoms()));
-        let found = numbers::numbers_with_progress(
+        let found = numbers::numbers_in(
+            id.face_set,
             &canonical.spiral,
-            id.cage.is_ipr(),
+            id.cage.is_isolated(id.face_set),
             dir.as_deref(),
             &mut |done, total| bar.update(done, total),
         );
@@ -208,7 +210,7 @@ fn report(out: &mut Out, label: &Label, id: &Identity, args: &Args) -> Result<()
         m.insert("atoms".into(), json!(id.cage.atoms()));
         let ids: Vec<String> = numbers
             .map(|n| {
-                n.ids(id.cage.atoms())
+                n.ids_in(id.face_set, id.cage.atoms())
                     .iter()
                     .map(|i| i.to_string())
                     .collect()
@@ -228,6 +230,9 @@ fn report(out: &mut Out, label: &Label, id: &Identity, args: &Args) -> Result<()
             json!(score::spiral_numbers(&canonical.spiral)),
         );
         m.insert("ipr".into(), json!(id.cage.is_ipr()));
+        m.insert("face_set".into(), json!(id.face_set.to_string()));
+        m.insert("formula".into(), json!(id.formula()));
+        m.insert("isolated".into(), json!(id.cage.is_isolated(id.face_set)));
         m.insert("charge".into(), json!(args.charge.charge));
         if let Value::Object(fields) = serde_json::to_value(&d)
             .map_err(|e| CliError::failed(format!("cannot encode JSON: {e}")))?
@@ -256,17 +261,20 @@ fn report(out: &mut Out, label: &Label, id: &Identity, args: &Args) -> Result<()
 
 /// Both IDs of the cage, complete list first: `C84:all-51591 = C84:IPR-23`; a number not
 /// computed shows as `?`.
-fn id_text(atoms: usize, numbers: Option<Numbers>) -> String {
+fn id_text(set: FaceSet, atoms: usize, numbers: Option<Numbers>) -> String {
+    let id = |list, k| IsomerId::of(set, atoms as u32, list, k);
     let Some(n) = numbers else {
-        return format!("C{atoms}");
+        return id(List::All, 1).formula();
     };
+    // An ID with its number replaced by `?`.
+    let unknown = |list| id(list, 1).to_string().trim_end_matches('1').to_string() + "?";
     let mut parts = vec![match n.complete {
-        Number::Listed(k) => IsomerId::new(atoms as u32, List::All, k).to_string(),
-        _ => format!("C{atoms}:all-?"),
+        Number::Listed(k) => id(List::All, k).to_string(),
+        _ => unknown(List::All),
     }];
     match n.ipr {
-        Number::Listed(k) => parts.push(IsomerId::new(atoms as u32, List::Ipr, k).to_string()),
-        Number::NotComputed { .. } => parts.push(format!("C{atoms}:IPR-?")),
+        Number::Listed(k) => parts.push(id(List::Ipr, k).to_string()),
+        Number::NotComputed { .. } => parts.push(unknown(List::Ipr)),
         Number::NotListed => {}
     }
     parts.join(" = ")
@@ -275,7 +283,8 @@ fn id_text(atoms: usize, numbers: Option<Numbers>) -> String {
 /// Why a number is missing and how to get it.
 fn number_notes(n: &Numbers, atoms: usize, spiral: &Spiral) -> Vec<String> {
     let mut notes = Vec::new();
-    if spiral.sizes().first() != Some(&5) && n.complete.listed().is_none() {
+    let fullerene = spiral.sizes().iter().all(|&s| s == 5 || s == 6);
+    if fullerene && spiral.sizes().first() != Some(&5) && n.complete.listed().is_none() {
         notes.push(format!(
             "this cage has no spiral starting on a pentagon: lists built with --pentagon-starts \
              (or by cagerank before hexagon starts became the default beyond C{}) leave it out, \
@@ -304,15 +313,38 @@ fn text_block(
     charge: i32,
 ) -> Vec<String> {
     let atoms = id.cage.atoms();
+    let bn = bn_values(id);
+    // A BN cage's symmetry is that of the coloured cage (B12N12: Th, its bare graph Oh).
+    let group = bn
+        .as_ref()
+        .map_or(d.point_group.name(), |(group, _)| group.clone());
     let mut lines = vec![
         format!(
             "{}: {}  {}",
             label.text(),
-            id_text(atoms, numbers),
-            d.point_group
+            id_text(id.face_set, atoms, numbers),
+            group
         ),
         format!("  canonical spiral      {spiral}"),
         cage_line(&id.cage, id.ignored),
+    ];
+    if id.face_set != FaceSet::Fullerene {
+        let reading = if id.face_set == FaceSet::SquareHexagon && id.is_boron_nitride() {
+            ", B and N alternate: the BN cage its ID names"
+        } else {
+            ""
+        };
+        lines.push(format!(
+            "  face set              {} ({}{reading}; square adjacencies {})",
+            id.face_set,
+            id.formula(),
+            id.cage.adjacencies_of(4)
+        ));
+        if let Some((_, line)) = bn {
+            lines.push(line);
+        }
+    }
+    lines.extend([
         format!("  symmetry              {}", symmetry_text(d)),
         format!("  13C NMR pattern       {}", nmr_text(&d.nmr)),
         format!(
@@ -332,7 +364,7 @@ fn text_block(
             d.shell.name()
         ),
         format!("  Kekulé structures     {}", d.kekule),
-    ];
+    ]);
     if let Some(n) = numbers {
         lines.extend(
             number_notes(&n, atoms, spiral)
@@ -343,6 +375,32 @@ fn text_block(
     lines
 }
 
+/// The BN cage's point group and a line with its symmetry and 11B/15N patterns, for a 4-6 cage
+/// whose B and N alternate (the colouring's classes follow the file: boron where the file has
+/// boron).
+fn bn_values(id: &Identity) -> Option<(String, String)> {
+    if !(id.face_set == FaceSet::SquareHexagon && id.is_boron_nitride()) {
+        return None;
+    }
+    let canonical = id.canonical.as_ref()?;
+    let bn = boron_nitride::describe_bn(&id.cage, canonical).ok()?;
+    // The library puts boron on atom 0; if the file has nitrogen there, the classes swap.
+    let (boron, nitrogen) = if id.elements.first().map(String::as_str) == Some("B") {
+        (&bn.boron_nmr, &bn.nitrogen_nmr)
+    } else {
+        (&bn.nitrogen_nmr, &bn.boron_nmr)
+    };
+    let line = format!(
+        "  BN cage               {}, {} automorphisms (bare cage {}); 11B {}; 15N {}",
+        bn.point_group.name(),
+        bn.automorphisms,
+        bn.cage_point_group.name(),
+        nmr_text(boron),
+        nmr_text(nitrogen)
+    );
+    Some((bn.point_group.name(), line))
+}
+
 fn cage_line(cage: &Cage, ignored: usize) -> String {
     let counts = cage.face_size_counts();
     let dropped = if ignored > 0 {
@@ -350,8 +408,13 @@ fn cage_line(cage: &Cage, ignored: usize) -> String {
     } else {
         String::new()
     };
+    let rings: String = [(4, "squares"), (7, "heptagons")]
+        .iter()
+        .filter(|&&(s, _)| counts[s] > 0)
+        .map(|&(s, name)| format!(", {} {name}", counts[s]))
+        .collect();
     format!(
-        "  cage                  {} atoms{dropped}, {} bonds, {} pentagons, {} hexagons",
+        "  cage                  {} atoms{dropped}, {} bonds, {} pentagons, {} hexagons{rings}",
         cage.atoms(),
         cage.edges().len(),
         counts[5],

@@ -36,7 +36,10 @@ pub struct Args {
     /// IPR isomers only (numbers are IPR-list numbers).
     #[arg(long)]
     pub ipr: bool,
-    /// Face set of the cages: fullerene, 4-6 or 4-5-6.
+    /// Face set of the cages: fullerene, 4-6, 4-5-6 or 5-6-7hH (at most H heptagons). Without
+    /// --rank-by, a non-fullerene list is ranked by its set's default order: 4-6 and 4-5-6
+    /// fewest square adjacencies, then the largest gap (the BN gap for 4-6); 5-6-7 fewest
+    /// heptagons, then fewest pentagon adjacencies, then the largest gap.
     #[arg(long, default_value = "fullerene", value_name = "SET")]
     pub faces: String,
     /// Read the run made for this cage charge (`enumerate --charge Q --catalogue`), e.g. -6 for
@@ -47,7 +50,7 @@ pub struct Args {
     #[arg(long, value_name = "K")]
     pub top: Option<usize>,
     /// Sort keys, e.g. pentagon_adjacencies,-gap ('-' = largest first) [default: the screening
-    /// order]. `relative_energy_kj` ranks by the tight-binding energies `cagerank screen` stored
+    /// order for fullerenes, the set's default order for --faces]. `relative_energy_kj` ranks by the tight-binding energies `cagerank screen` stored
     /// (isomers without one come last, and the other keys break ties).
     #[arg(long, value_name = "KEY,...", allow_hyphen_values = true)]
     pub rank_by: Option<String>,

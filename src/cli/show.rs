@@ -6,7 +6,9 @@
 //! Looks the isomer up through `identify::numbers` (a catalogue index when one holds the size,
 //! else a search that stops at the isomer), asks `score::full_record` for the numbers and prints
 //! them grouped under topology, electronic structure, symmetry and energies, or as one JSON
-//! object. The science lives in the library.
+//! object. Cages of the other face sets (`B12N12:4-6-iso-1`, `C24:4-5-6-all-7`,
+//! `C40:5-6-7h1-all-3`) get the same layout with their face counts and contacts, and a 4-6
+//! cage its BN values from `score::boron_nitride`. The science lives in the library.
 
 use super::output::{counted, write_line, Out};
 use super::query::{catalogue_dir, catalogue_error};
@@ -18,6 +20,7 @@ use cagerank::derivative::{huckel, BondFilter, Hetero, Kind, PatternId};
 use cagerank::enumerate;
 use cagerank::export::Numbers;
 use cagerank::id::{IsomerId, List};
+use cagerank::score::boron_nitride::{self, BnDescriptors, RankFacts};
 use cagerank::score::{self, nmr, Descriptors, FullRecord, ScoreError};
 use cagerank::spiral::{canonical_spiral, Spiral};
 use std::path::{Path, PathBuf};
@@ -65,6 +68,9 @@ pub fn run(args: Args) -> Result<(), CliError> {
     let (atoms, id) = parse_id(&args.id, args.ipr)?;
     score::check_size(usize::try_from(atoms).unwrap_or(usize::MAX))
         .map_err(|e| CliError::usage(e.to_string()))?;
+    if let Some(id) = id.filter(|id| id.face_set != FaceSet::Fullerene) {
+        return show_cage(id, &dir, &args);
+    }
     let (spiral, number, ipr_number) = match (&args.spiral, id) {
         (Some(list), None) => from_spiral(atoms, list, &args)?,
         (None, Some(id)) => from_id(id, &dir, &args)?,
@@ -103,6 +109,267 @@ pub fn run(args: Args) -> Result<(), CliError> {
         write_line(&mut out, CAUTION)?;
     }
     out.finish()
+}
+
+/// Shows one cage of another face set: its own layout (or JSON object) and the caution.
+fn show_cage(id: IsomerId, dir: &Path, args: &Args) -> Result<(), CliError> {
+    if args.spiral.is_some() {
+        return Err(CliError::usage(
+            "--spiral takes fullerene pentagon positions; give a face-set ID alone",
+        ));
+    }
+    let charge = args.charge.charge;
+    let catalogue = dir.is_dir().then_some(dir);
+    let (spiral, numbers) = super::export::locate(id, catalogue, !args.no_numbers)?;
+    let record = score::full_record(&spiral, numbers.number, numbers.ipr_number, charge).map_err(
+        |e| match e {
+            ScoreError::Charge(_) | ScoreError::TooLarge { .. } => CliError::usage(e.to_string()),
+            _ => CliError::failed(e.to_string()),
+        },
+    )?;
+    let cage = spiral.to_cage();
+    let bn = match id.face_set {
+        FaceSet::SquareHexagon if charge != 0 => {
+            return Err(CliError::usage(
+                "a 4-6 cage is shown as the neutral BN cage; leave out --charge",
+            ))
+        }
+        FaceSet::SquareHexagon => {
+            let canonical = canonical_spiral(&cage)
+                .ok_or_else(|| CliError::failed("the cage has no canonical spiral"))?;
+            Some(
+                boron_nitride::describe_bn(&cage, &canonical)
+                    .map_err(|e| CliError::failed(e.to_string()))?,
+            )
+        }
+        _ => None,
+    };
+    let facts = boron_nitride::rank_facts(&cage, id.face_set, record.descriptors.gap, bn.as_ref());
+    let ids: Vec<String> = [(List::All, record.number), (List::Ipr, record.ipr_number)]
+        .iter()
+        .filter_map(|&(list, n)| n.map(|n| IsomerId::of(id.face_set, id.atoms, list, n)))
+        .map(|i| i.to_string())
+        .collect();
+    let ids = if ids.is_empty() {
+        id.to_string()
+    } else {
+        ids.join(" = ")
+    };
+    let mut out = Out::stdout();
+    if args.json {
+        let mut value = serde_json::to_value(&record)
+            .map_err(|e| CliError::failed(format!("cannot encode JSON: {e}")))?;
+        if let Some(map) = value.as_object_mut() {
+            let counts = cage.face_size_counts();
+            map.insert("id".into(), id.to_string().into());
+            map.insert("face_set".into(), id.face_set.to_string().into());
+            map.insert("formula".into(), id.formula().into());
+            map.insert(
+                "face_counts".into(),
+                serde_json::json!({"4": counts[4], "5": counts[5], "6": counts[6], "7": counts[7]}),
+            );
+            map.insert("square_adjacencies".into(), cage.adjacencies_of(4).into());
+            if let Some(b) = &bn {
+                map.insert("bn".into(), bn_json(b));
+            }
+        }
+        write_line(&mut out, &value.to_string())?;
+        eprintln!("{CAUTION}");
+    } else {
+        let lines = cage_block(
+            id,
+            &ids,
+            &record,
+            &spiral,
+            bn.as_ref(),
+            (&facts, cage.adjacencies_of(4)),
+            charge,
+        );
+        for line in lines {
+            write_line(&mut out, &line)?;
+        }
+        write_line(&mut out, CAUTION)?;
+    }
+    out.finish()
+}
+
+/// The BN values of a 4-6 cage as JSON (the keys `enumerate --faces 4-6 --json` uses).
+fn bn_json(b: &BnDescriptors) -> serde_json::Value {
+    serde_json::json!({
+        "boron_on": "atom 0 of the canonical-spiral winding",
+        "homo": b.homo, "lumo": b.lumo, "gap": b.gap, "pi_energy": b.pi_energy,
+        "point_group": b.point_group.name(), "chiral": b.chiral,
+        "automorphisms": b.automorphisms,
+        "cage_point_group": b.cage_point_group.name(),
+        "nmr_11b": nmr::format_pattern(&b.boron_nmr),
+        "nmr_15n": nmr::format_pattern(&b.nitrogen_nmr),
+        "swap_equivalent": b.swap_equivalent,
+    })
+}
+
+/// The block of a cage of another face set, grouped as for fullerenes: identity, topology
+/// (face counts and contacts), electronic structure (BN Hückel for 4-6, carbon otherwise),
+/// symmetry (NMR patterns) and the keys of the set's default order.
+fn cage_block(
+    id: IsomerId,
+    ids: &str,
+    r: &FullRecord,
+    spiral: &Spiral,
+    bn: Option<&BnDescriptors>,
+    (facts, square_adjacencies): (&RankFacts, usize),
+    charge: i32,
+) -> Vec<String> {
+    let d = &r.descriptors;
+    let row = |label: &str, value: String| format!("  {label:<31}{value}");
+    let counts = {
+        let mut c = [0usize; 9];
+        for f in &r.faces {
+            c[f.len().min(8)] += 1;
+        }
+        c
+    };
+    let names = [
+        (4, "squares"),
+        (5, "pentagons"),
+        (6, "hexagons"),
+        (7, "heptagons"),
+    ];
+    let rings: Vec<String> = names
+        .iter()
+        .filter(|&&(s, _)| counts[s] > 0)
+        .map(|&(s, name)| format!("{} {name}", counts[s]))
+        .collect();
+    let group = bn.map_or(d.point_group.name(), |b| b.point_group.name());
+    let what = match bn {
+        Some(_) => format!(
+            "{} (squares and hexagons) as {}, boron on atom 0 of the canonical-spiral winding",
+            id.face_set,
+            id.formula()
+        ),
+        None => {
+            let sizes: Vec<String> = id.face_set.sizes().iter().map(u8::to_string).collect();
+            format!(
+                "{} (rings of {} atoms), carbon",
+                id.face_set,
+                sizes.join(", ")
+            )
+        }
+    };
+    let mut lines = vec![
+        format!("{ids}  {group}  charge {charge:+}"),
+        "identity".to_string(),
+        row("IDs", ids.to_string()),
+        row("face set", what),
+        row("canonical spiral (face sizes)", spiral.to_string()),
+        "topology".to_string(),
+        row(
+            "atoms, bonds, rings",
+            format!(
+                "{}, {}, {} ({})",
+                r.atoms,
+                r.edges.len(),
+                r.faces.len(),
+                rings.join(", ")
+            ),
+        ),
+    ];
+    if counts[4] > 0 {
+        let isolated = if square_adjacencies == 0 {
+            " (isolated squares)"
+        } else {
+            ""
+        };
+        lines.push(row(
+            "square adjacencies",
+            format!("{square_adjacencies}{isolated}"),
+        ));
+    }
+    if counts[5] > 0 {
+        lines.push(row(
+            "pentagon adjacencies",
+            d.pentagon_adjacencies.to_string(),
+        ));
+    }
+    if let FaceSet::PentagonHexagonHeptagon { heptagons } = id.face_set {
+        lines.push(row(
+            "heptagons",
+            format!("{} (list bound {heptagons})", counts[7]),
+        ));
+    }
+    match bn {
+        Some(b) => {
+            lines.push(
+                "electronic structure (BN Hückel, Van-Catledge 1980: h_B -0.45, h_N 0.51, k_BN 0.66)"
+                    .to_string(),
+            );
+            lines.push(row(
+                "HOMO, LUMO, gap (|beta|)",
+                format!("{:.4}, {:.4}, {:.4}", b.homo, b.lumo, b.gap),
+            ));
+            lines.push(row(
+                "pi energy (|beta|)",
+                format!("{:.4} ({} pi electrons from N)", b.pi_energy, r.atoms),
+            ));
+            lines.push("symmetry".to_string());
+            lines.push(row(
+                "point group (B/N cage)",
+                format!(
+                    "{}, {} automorphisms, {} (bare cage {})",
+                    b.point_group.name(),
+                    b.automorphisms,
+                    if b.chiral { "chiral" } else { "achiral" },
+                    b.cage_point_group.name()
+                ),
+            ));
+            lines.push(row("11B NMR pattern", nmr_text(&b.boron_nmr)));
+            lines.push(row("15N NMR pattern", nmr_text(&b.nitrogen_nmr)));
+            lines.push(row(
+                "B and N swapped",
+                if b.swap_equivalent {
+                    "the same molecule (a symmetry of the cage swaps them)".to_string()
+                } else {
+                    "a different BN cage on the same graph".to_string()
+                },
+            ));
+        }
+        None => {
+            lines.push(row("Kekulé structures", d.kekule.to_string()));
+            lines.push(row(
+                "Pauling bond orders",
+                range_text(&r.pauling_bond_orders),
+            ));
+            lines.push(format!("electronic structure (Hückel, charge {charge:+})"));
+            lines.extend(huckel_rows(d).into_iter().map(|(l, v)| row(l, v)));
+            lines.push("symmetry".to_string());
+            lines.push(row("point group", symmetry_text(d)));
+            lines.push(row("13C NMR pattern", nmr_text(&d.nmr)));
+        }
+    }
+    lines.push(format!(
+        "ranking (default order of {}, score::boron_nitride::default_order)",
+        id.face_set
+    ));
+    let mut keys = Vec::new();
+    if let FaceSet::PentagonHexagonHeptagon { .. } = id.face_set {
+        keys.push(format!("heptagons {}", facts.heptagons));
+        keys.push(format!(
+            "pentagon adjacencies {}",
+            facts.isolated_adjacencies
+        ));
+    } else {
+        keys.push(format!("square adjacencies {}", facts.isolated_adjacencies));
+    }
+    keys.push(format!(
+        "{} {:.4}",
+        if bn.is_some() { "BN gap" } else { "gap" },
+        facts.gap
+    ));
+    lines.push(row("keys in order", keys.join("; ")));
+    lines.push(row(
+        "energies",
+        "not computed: the tight-binding screen runs for fullerenes only".to_string(),
+    ));
+    lines
 }
 
 /// Shows one derivative: the pattern's block (or JSON object) and the caution.

@@ -23,7 +23,8 @@ use std::io::{self, Write};
 /// What the colours show.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Default)]
 pub enum Colouring {
-    /// Pentagons filled, hexagons pale.
+    /// Rings filled by size: squares, pentagons, hexagons and heptagons each in their own
+    /// colour, with a legend of the sizes present.
     #[default]
     Faces,
     /// Bonds coloured by Pauling bond order.

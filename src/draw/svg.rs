@@ -67,14 +67,40 @@ fn frame() -> String {
     format!("M{lo},{lo} L{hi},{lo} L{hi},{hi} L{lo},{hi} Z ")
 }
 
-/// Size colours: pentagons strong, hexagons pale, anything else grey-blue.
+/// Ring sizes with a colour and legend name of their own; any other size is "other ring".
+const NAMED_SIZES: [(usize, &str); 4] = [
+    (4, "square"),
+    (5, "pentagon"),
+    (6, "hexagon"),
+    (7, "heptagon"),
+];
+
+/// Size colours: pentagons strong, hexagons pale, squares green, heptagons violet, anything
+/// else grey-blue (chosen to stay apart for common colour-vision deficiencies as far as four
+/// hues allow; common practice, no source).
 fn size_colour(size: usize) -> &'static str {
     match size {
+        4 => "#8ab17d",
         5 => "#e76f51",
         6 => "#f1f5f9",
-        4 => "#8ab17d",
+        7 => "#7b61c4",
         _ => "#b8c4d6",
     }
+}
+
+/// Legend entries of the ring sizes the picture has: (colour, name), squares to heptagons,
+/// then "other ring" if any face has another size.
+fn size_legend(faces: &[Vec<u32>]) -> Vec<(&'static str, &'static str)> {
+    let has = |size: usize| faces.iter().any(|f| f.len() == size);
+    let mut out: Vec<(&'static str, &'static str)> = NAMED_SIZES
+        .iter()
+        .filter(|&&(size, _)| has(size))
+        .map(|&(size, name)| (size_colour(size), name))
+        .collect();
+    if faces.iter().any(|f| !(4..=7).contains(&f.len())) {
+        out.push((size_colour(0), "other ring"));
+    }
+    out
 }
 
 /// Linear three-stop scale (pale yellow → teal → dark blue) for t in [0, 1].
@@ -282,11 +308,15 @@ fn write_captions(w: &mut impl Write, p: &Picture<'_>) -> io::Result<()> {
         y0 + 8.0,
         escape(p.title)
     )?;
+    let mut sites_x = 220.0;
     match &p.colours {
         Colours::Faces => {
-            legend_swatch(w, 16.0, y0 + 22.0, size_colour(5), "pentagon")?;
-            legend_swatch(w, 120.0, y0 + 22.0, size_colour(6), "hexagon")?;
-            legend_swatch(w, 220.0, y0 + 22.0, size_colour(4), "other ring")?;
+            let mut x = 16.0;
+            for (colour, name) in size_legend(p.faces) {
+                legend_swatch(w, x, y0 + 22.0, colour, name)?;
+                x += 104.0;
+            }
+            sites_x = x + 6.0;
         }
         Colours::Bonds(v) => legend_scale(w, y0 + 22.0, "Pauling bond order", range(v))?,
         Colours::FaceValues(v) => legend_scale(
@@ -299,7 +329,7 @@ fn write_captions(w: &mut impl Write, p: &Picture<'_>) -> io::Result<()> {
     // Beside the ring swatches; under a colour scale, right of its end value.
     if let Some(marks) = p.marks {
         match p.colours {
-            Colours::Faces => legend_sites(w, 330.0, y0 + 22.0, marks)?,
+            Colours::Faces => legend_sites(w, sites_x, y0 + 22.0, marks)?,
             _ => legend_sites(w, 220.0, y0 + 40.0, marks)?,
         }
     }

@@ -59,6 +59,7 @@ pub fn prepare(parent_id: IsomerId, numbers: Numbers, named: &Named) -> Result<E
         geometry,
         tight_binding: None,
         kekule,
+        bn: None,
         derivative: Some(DerivativePart {
             id: named.id.to_string(),
             stem: named.file_stem(),

@@ -22,7 +22,8 @@ pub fn record(entry: &Entry) -> Value {
     let mut value = serde_json::to_value(&entry.record).unwrap_or(Value::Null);
     let extra = json!({
         "id": entry.id.to_string(),
-        "list": entry.id.list.tag(),
+        "list": entry.id.list_tag(),
+        "cage": super::cages::json(entry),
         "number": entry.numbers.number,
         "ipr_number": entry.numbers.ipr_number,
         "charge": entry.charge,
@@ -31,7 +32,11 @@ pub fn record(entry: &Entry) -> Value {
             "units": "angstrom",
             "coordinates": g.coords,
             "kekule_double_bonds": double_bonds,
-            "force_field": "harmonic bonds from Pauling bond orders + ring-angle bending (see geometry::forcefield)",
+            "force_field": if entry.bn.is_some() {
+                "harmonic bonds from Pauling bond orders + ring-angle bending (see geometry::forcefield); carbon force field, B-N bond lengths not fitted"
+            } else {
+                "harmonic bonds from Pauling bond orders + ring-angle bending (see geometry::forcefield)"
+            },
             "energy_ev": g.energy_ev,
             "max_force_ev_per_angstrom": g.max_force_ev_per_angstrom,
             "iterations": g.iterations,

@@ -49,7 +49,7 @@ pub fn write(w: &mut impl Write, entries: &[Entry], files: &[Vec<String>]) -> io
         let number = |n: Option<u64>| n.map_or(String::new(), |n| n.to_string());
         let mut row = vec![
             entry.name(),
-            entry.id.list.tag().to_string(),
+            entry.id.list_tag().to_string(),
             number(entry.numbers.number),
             number(entry.numbers.ipr_number),
             entry.spiral.to_string(),

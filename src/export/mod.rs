@@ -2,13 +2,16 @@
 //! JSON and input decks for ORCA, Gaussian, xTB and CP2K, one file per isomer named by its ID
 //! (`C84_IPR-23.xyz`: the ID always says its list, see `id`), plus a multi-structure SDF and
 //! `manifest.csv`. Derivatives (pattern IDs such as `C60:IPR-1+2H:5`, see [`derivative`]) go
-//! through the same writers with their addend and hetero atoms, charges and radical centres.
+//! through the same writers with their addend and hetero atoms, charges and radical centres;
+//! cages of the other face sets (`B12N12:4-6-iso-1`, `C24:4-5-6-all-7`, see [`cages`]) with
+//! their face counts, and 4-6 cages as boron-nitride cages.
 //!
 //! Writers take `impl Write`; [`write_atomic`] puts a file in place by temp file + fsync +
 //! rename, so a crash never leaves a half-written file under the final name, and [`write_all`]
 //! refuses to replace an existing file unless told to. Choosing *which* isomers to export
 //! (catalogue query or enumeration and ranking) is the caller's business.
 
+pub mod cages;
 pub mod deck;
 pub mod derivative;
 pub mod json;
@@ -16,11 +19,14 @@ pub mod manifest;
 pub mod sdf;
 pub mod xyz;
 
+use crate::cage::FaceSet;
 use crate::cage::{Cage, EdgeId};
+use crate::derivative::structure::Atom;
 use crate::geometry::{self, Geometry, GeometryError};
 use crate::id::IsomerId;
+use crate::score::boron_nitride::{describe_bn, BnDescriptors};
 use crate::score::{self, FullRecord, ScoreError};
-use crate::spiral::Spiral;
+use crate::spiral::{canonical_spiral, Spiral};
 use deck::Code;
 use std::collections::BTreeSet;
 use std::fmt;
@@ -51,8 +57,11 @@ pub struct Entry {
     pub geometry: Geometry,
     /// The stored tight-binding result whose geometry `geometry` holds, if any.
     pub tight_binding: Option<TightBinding>,
-    /// The double bonds of one Kekulé structure (a perfect matching).
+    /// The double bonds of one Kekulé structure (a perfect matching); empty for a BN cage,
+    /// whose bonds are all written single (see [`cages`]).
     pub kekule: Vec<EdgeId>,
+    /// The BN reading of a 4-6 cage (its atoms are then written as B and N).
+    pub bn: Option<BnDescriptors>,
     /// Set when the entry is a derivative of this cage: the files then hold its molecule and
     /// are named by its pattern ID.
     pub derivative: Option<derivative::DerivativePart>,
@@ -127,6 +136,12 @@ pub enum ExportError {
     UnknownFormat(String),
     Score(ScoreError),
     Geometry(GeometryError),
+    /// A 4-6 cage that cannot be read as a BN cage (it would need a cage charge, or its
+    /// spiral is not canonical).
+    BoronNitride {
+        id: IsomerId,
+        reason: String,
+    },
     /// The cage has no perfect matching, so no single/double bond assignment exists.
     NoKekule {
         id: IsomerId,
@@ -166,6 +181,7 @@ impl fmt::Display for ExportError {
             }
             ExportError::Score(e) => e.fmt(f),
             ExportError::Geometry(e) => e.fmt(f),
+            ExportError::BoronNitride { id, reason } => write!(f, "{id}: {reason}"),
             ExportError::NoKekule { id } => {
                 write!(f, "{id} has no Kekulé structure, so SDF bond orders cannot be assigned; export xyz or json instead")
             }
@@ -209,7 +225,9 @@ pub struct Numbers {
 }
 
 /// Scores and relaxes the cage of `spiral` for export under the ID `id`. Atoms are numbered
-/// as `spiral` winds them, in the geometry and in the record alike.
+/// as `spiral` winds them, in the geometry and in the record alike. A 4-6 ID gives the BN cage
+/// (neutral only: the BN descriptors are those of the neutral cage), relaxed with the carbon
+/// force field.
 pub fn prepare(
     id: IsomerId,
     spiral: &Spiral,
@@ -220,7 +238,12 @@ pub fn prepare(
     let record = score::full_record(spiral, numbers.number, numbers.ipr_number, charge)
         .map_err(ExportError::Score)?;
     let geometry = geometry::relax(&cage).map_err(ExportError::Geometry)?;
-    let kekule = score::kekule::kekule_structure(&cage).ok_or(ExportError::NoKekule { id })?;
+    let bn = boron_nitride(id, &cage, charge)?;
+    let kekule = if bn.is_some() {
+        Vec::new()
+    } else {
+        score::kekule::kekule_structure(&cage).ok_or(ExportError::NoKekule { id })?
+    };
     Ok(Entry {
         id,
         numbers,
@@ -231,8 +254,32 @@ pub fn prepare(
         geometry,
         tight_binding: None,
         kekule,
+        bn,
         derivative: None,
     })
+}
+
+/// The BN descriptors of a 4-6 cage (`None` for other face sets).
+fn boron_nitride(
+    id: IsomerId,
+    cage: &Cage,
+    charge: i32,
+) -> Result<Option<BnDescriptors>, ExportError> {
+    if id.face_set != FaceSet::SquareHexagon {
+        return Ok(None);
+    }
+    let fail = |reason: String| ExportError::BoronNitride { id, reason };
+    if charge != 0 {
+        return Err(fail(
+            "BN cages are exported neutral only (their descriptors are those of the neutral \
+             cage); leave out --charge"
+                .to_string(),
+        ));
+    }
+    let canonical = canonical_spiral(cage).ok_or_else(|| fail("the cage has no spiral".into()))?;
+    describe_bn(cage, &canonical)
+        .map(Some)
+        .map_err(|e| fail(e.to_string()))
 }
 
 impl Entry {
@@ -276,7 +323,10 @@ impl Entry {
     pub fn point_group(&self) -> String {
         match &self.derivative {
             Some(d) => d.score.point_group.name(),
-            None => self.record.descriptors.point_group.name(),
+            None => match &self.bn {
+                Some(bn) => bn.point_group.name(),
+                None => self.record.descriptors.point_group.name(),
+            },
         }
     }
 
@@ -297,7 +347,10 @@ impl Entry {
                 .iter()
                 .map(|a| (a.element, a.position))
                 .collect(),
-            None => self.geometry.coords.iter().map(|&c| ("C", c)).collect(),
+            None => cages::elements(self)
+                .into_iter()
+                .zip(self.geometry.coords.iter().copied())
+                .collect(),
         }
     }
 
@@ -327,9 +380,13 @@ impl Entry {
         for other in self.other_ids() {
             title.push_str(&format!(" = {other}"));
         }
+        let note = match &self.bn {
+            Some(_) => format!(" ({})", cages::BN_GEOMETRY_NOTE),
+            None => String::new(),
+        };
         format!(
-            "{title} {} charge {} multiplicity {}, cagerank {} geometry",
-            self.record.descriptors.point_group.name(),
+            "{title} {} charge {} multiplicity {}, cagerank {} geometry{note}",
+            self.point_group(),
             self.charge,
             self.multiplicity(),
             self.geometry_source().replace('_', "-")
@@ -344,7 +401,7 @@ impl Entry {
             (crate::id::List::Ipr, self.numbers.ipr_number),
         ]
         .into_iter()
-        .filter_map(|(list, n)| Some(IsomerId::new(atoms, list, n?)))
+        .filter_map(|(list, n)| Some(IsomerId::of(self.id.face_set, atoms, list, n?)))
         .filter(|other| *other != self.id)
         .collect()
     }
@@ -362,7 +419,8 @@ pub fn comment_line(entry: &Entry) -> String {
             ("sites".to_string(), d.sites.clone()),
         ]);
     }
-    pairs.push(("list".to_string(), entry.id.list.tag().to_string()));
+    pairs.push(("list".to_string(), entry.id.list_tag().to_string()));
+    pairs.extend(cages::pairs(entry));
     if let Some(n) = entry.numbers.number {
         pairs.push(("number".into(), n.to_string()));
     }
@@ -471,12 +529,13 @@ pub fn write_sdf(w: &mut impl Write, entry: &Entry) -> io::Result<()> {
         fields.push(("parent".to_string(), entry.id.to_string()));
     }
     fields.extend([
-        ("list".to_string(), entry.id.list.tag().to_string()),
+        ("list".to_string(), entry.id.list_tag().to_string()),
         ("number".to_string(), number(entry.numbers.number)),
         ("ipr_number".to_string(), number(entry.numbers.ipr_number)),
         ("spiral".to_string(), entry.spiral.to_string()),
         ("point_group".to_string(), entry.point_group()),
     ]);
+    fields.extend(cages::pairs(entry));
     fields.extend(scalar_fields(entry));
     if let Some(d) = &entry.derivative {
         fields.extend(derivative::extra_fields(d));
@@ -494,16 +553,30 @@ pub fn write_sdf(w: &mut impl Write, entry: &Entry) -> io::Result<()> {
         );
     }
     fields.push(("caution".to_string(), CAUTION.to_string()));
-    sdf::write_record(
+    let name = entry.id.to_string();
+    let comment = if entry.bn.is_some() {
+        "cagerank starting geometry: carbon force field, B-N bond lengths not fitted"
+    } else if entry.tight_binding.is_some() {
+        "cagerank tight-binding geometry; refine with quantum chemistry"
+    } else {
+        "cagerank force-field starting geometry; refine with quantum chemistry"
+    };
+    let atoms: Vec<Atom> = entry
+        .atoms()
+        .into_iter()
+        .map(|(element, position)| Atom {
+            element,
+            position,
+            charge: 0,
+            radical: false,
+        })
+        .collect();
+    sdf::write_molecule(
         w,
-        &sdf::Record {
-            name: &entry.id.to_string(),
-            comment: if entry.tight_binding.is_some() {
-                "cagerank tight-binding geometry; refine with quantum chemistry"
-            } else {
-                "cagerank force-field starting geometry; refine with quantum chemistry"
-            },
-            coords: &entry.geometry.coords,
+        &sdf::MoleculeRecord {
+            name: &name,
+            comment,
+            atoms: &atoms,
             bonds: &bond_orders(entry),
             fields: &fields,
         },

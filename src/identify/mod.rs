@@ -1,10 +1,12 @@
-//! Identify a carbon cage from atomic coordinates: the reverse of spiral → cage → geometry.
+//! Identify a cage from atomic coordinates: the reverse of spiral → cage → geometry.
 //!
 //! Pipeline: read the file ([`xyz`], [`sdf`]), drop atoms the user asked to ignore, perceive
-//! bonds from distances ([`perceive`]), check that every atom is a carbon with three carbon
-//! neighbours and that the atoms form one piece, order each atom's neighbours from the 3D
-//! geometry ([`embed`]), trace the faces ([`Cage::from_rotation`], which checks Euler's
-//! formula), check the face set, and read the canonical spiral. Isomer numbers come from the
+//! bonds from distances ([`perceive`]), check that every atom is a cage atom (carbon, boron or
+//! nitrogen: fullerenes, BN cages and doped cages alike) with three neighbours and that the
+//! atoms form one piece, order each atom's neighbours from the 3D geometry ([`embed`]), trace
+//! the faces ([`Cage::from_rotation`], which checks Euler's formula), find the face set the
+//! rings belong to (fullerene, 4-6, 4-5-6, or 5-6-7 with as many heptagons as the cage has),
+//! and read the canonical spiral. Isomer numbers come from the
 //! enumerator or a catalogue ([`numbers`]). Every failure is a specific [`IdentifyError`]; no
 //! input makes this module panic. Scoring and printing are left to `score` and `cli`.
 
@@ -47,7 +49,7 @@ impl Default for Options {
 pub enum IdentifyError {
     /// Nothing left once ignored elements are dropped.
     NoAtoms { ignored: usize },
-    /// Atoms other than carbon remain: element symbols with their counts.
+    /// Atoms other than cage atoms (C, B, N) remain: element symbols with their counts.
     NotCarbon { elements: Vec<(String, usize)> },
     /// Two atoms nearly on top of each other.
     Duplicate { a: usize, b: usize, distance: f64 },
@@ -60,7 +62,8 @@ pub enum IdentifyError {
     Pieces { sizes: Vec<usize> },
     /// Every atom is three-coordinate but the rings do not close into a sphere.
     NotClosed(CageError),
-    /// A closed cage with rings outside the fullerene face set: (ring size, count).
+    /// A closed cage whose rings fit none of the face sets (a ring outside 4..7, or squares
+    /// with heptagons): (ring size, count) of its rings other than pentagons and hexagons.
     FaceSet {
         atoms: usize,
         outside: Vec<(usize, usize)>,
@@ -80,8 +83,9 @@ impl fmt::Display for IdentifyError {
                 let names: Vec<&str> = elements.iter().map(|(e, _)| e.as_str()).collect();
                 write!(
                     f,
-                    "found non-carbon atoms ({}): an exohedral derivative or an endohedral atom: \
-                     give the bare cage or use --ignore-elements {}",
+                    "found atoms other than the cage elements C, B, N ({}): an exohedral \
+                     derivative or an endohedral atom: give the bare cage or use \
+                     --ignore-elements {}",
                     listed.join(", "),
                     names.join(",")
                 )
@@ -114,8 +118,8 @@ impl fmt::Display for IdentifyError {
                     .collect();
                 write!(
                     f,
-                    "a closed {atoms}-atom cage, but not a fullerene: it has rings {} besides \
-                     pentagons and hexagons, and only fullerenes are identified",
+                    "a closed {atoms}-atom cage, but of none of the face sets identified \
+                     (fullerene, 4-6, 4-5-6, 5-6-7): it has rings {}",
                     listed.join(", ")
                 )
             }
@@ -153,13 +157,18 @@ fn write_wrong_neighbours(
 
 impl std::error::Error for IdentifyError {}
 
-/// What is known about a structure that is a closed fullerene cage.
+/// What is known about a structure that is a closed cage.
 #[derive(Debug, Clone)]
 pub struct Identity {
     /// Atoms dropped because of `Options::ignore`.
     pub ignored: usize,
     /// The cage, atoms numbered in file order (ignored atoms left out).
     pub cage: Cage,
+    /// The face set whose lists number the cage; for 5-6-7 the heptagon bound is the cage's
+    /// own heptagon count (the shortest such list that holds it).
+    pub face_set: FaceSet,
+    /// Element of every cage atom, in cage order (C, B or N).
+    pub elements: Vec<String>,
     /// The canonical spiral and symmetries; `None` if no face spiral exists for this cage.
     pub canonical: Option<Canonical>,
 }
@@ -177,13 +186,44 @@ pub fn identify(structure: &Structure, options: &Options) -> Result<Identity, Id
     check_one_piece(&cubic)?;
     let rotation = embed::rotation_system(&positions, &cubic);
     let cage = Cage::from_rotation(rotation).map_err(IdentifyError::NotClosed)?;
-    check_fullerene(&cage)?;
+    let face_set = face_set_of(&cage)?;
     let canonical = canonical_spiral(&cage);
     Ok(Identity {
         ignored: structure.atoms.len() - kept.len(),
         cage,
+        face_set,
+        elements: kept
+            .iter()
+            .map(|&i| structure.atoms[i].element.clone())
+            .collect(),
         canonical,
     })
+}
+
+impl Identity {
+    /// The molecular formula in Hill order (`C60`, `B12N12`, `C58BN`).
+    pub fn formula(&self) -> String {
+        let count = |e: &str| self.elements.iter().filter(|x| *x == e).count();
+        ["C", "B", "N"]
+            .iter()
+            .filter(|e| count(e) > 0)
+            .map(|e| match count(e) {
+                1 => e.to_string(),
+                n => format!("{e}{n}"),
+            })
+            .collect()
+    }
+
+    /// True if B and N alternate over every bond and no carbon remains: the cage is written as
+    /// the BN cage its 4-6 ID names.
+    pub fn is_boron_nitride(&self) -> bool {
+        self.elements.iter().all(|e| e == "B" || e == "N")
+            && self
+                .cage
+                .edges()
+                .iter()
+                .all(|&[a, b]| self.elements[a as usize] != self.elements[b as usize])
+    }
 }
 
 /// Indices (into the structure) and positions of the atoms that are not ignored; an error if
@@ -203,7 +243,7 @@ fn keep_atoms(
     let mut others: Vec<(String, usize)> = Vec::new();
     for &i in &kept {
         let e = &structure.atoms[i].element;
-        if e != "C" {
+        if !CAGE_ELEMENTS.contains(&e.as_str()) {
             match others.iter_mut().find(|(x, _)| x == e) {
                 Some(entry) => entry.1 += 1,
                 None => others.push((e.clone(), 1)),
@@ -216,6 +256,9 @@ fn keep_atoms(
     let positions = kept.iter().map(|&i| structure.atoms[i].position).collect();
     Ok((kept, positions))
 }
+
+/// Elements read as cage atoms: carbon cages, boron-nitride cages, and cages doped with B or N.
+const CAGE_ELEMENTS: [&str; 3] = ["C", "B", "N"];
 
 fn three_neighbours(
     neighbours: &[Vec<u32>],
@@ -269,20 +312,34 @@ fn check_one_piece(cubic: &[[u32; 3]]) -> Result<(), IdentifyError> {
     Ok(())
 }
 
-fn check_fullerene(cage: &Cage) -> Result<(), IdentifyError> {
+/// The face set whose lists hold the cage: the smallest of fullerene, 4-6, 4-5-6 and 5-6-7
+/// (with the cage's own heptagon count as bound) that allows all its rings.
+fn face_set_of(cage: &Cage) -> Result<FaceSet, IdentifyError> {
     let counts = cage.face_size_counts();
+    let heptagons = counts[7];
+    let candidates = [
+        FaceSet::Fullerene,
+        FaceSet::SquareHexagon,
+        FaceSet::SquarePentagonHexagon,
+        FaceSet::PentagonHexagonHeptagon {
+            heptagons: u8::try_from(heptagons).unwrap_or(u8::MAX),
+        },
+    ];
+    let fits = |set: &FaceSet| {
+        (0..=MAX_FACE).all(|s| counts[s] == 0 || set.allows(s as u8))
+            && (heptagons == 0 || heptagons <= usize::from(set.heptagon_bound()))
+    };
+    if let Some(set) = candidates.iter().find(|set| fits(set)) {
+        return Ok(*set);
+    }
     let outside: Vec<(usize, usize)> = (0..=MAX_FACE)
-        .filter(|&s| counts[s] > 0 && !FaceSet::Fullerene.allows(s as u8))
+        .filter(|&s| counts[s] > 0 && s != 5 && s != 6)
         .map(|s| (s, counts[s]))
         .collect();
-    if outside.is_empty() {
-        Ok(())
-    } else {
-        Err(IdentifyError::FaceSet {
-            atoms: cage.atoms(),
-            outside,
-        })
-    }
+    Err(IdentifyError::FaceSet {
+        atoms: cage.atoms(),
+        outside,
+    })
 }
 
 /// Parses a comma-separated element list ("Sc,N", "sc, n") into normalised symbols.

@@ -13,6 +13,7 @@
 
 use crate::cage::FaceSet;
 use crate::catalogue::{data_file_name, CatalogueError, DataFile};
+use crate::enumerate::faces::SizeError;
 use crate::enumerate::{self, Spec};
 use crate::id::{IsomerId, List};
 use crate::spiral::{Spiral, SpiralError};
@@ -28,6 +29,14 @@ pub const COMPLETE_LIST_MAX_ATOMS: usize = 84;
 /// Largest cage whose IPR-list number is searched for without a catalogue (the IPR search prunes
 /// hard; C120 has 10,774 IPR isomers, OEIS A046880). A judgement call, not measured per machine.
 pub const IPR_LIST_MAX_ATOMS: usize = 120;
+
+/// Largest cage of another face set (4-6, 4-5-6, 5-6-7) whose numbers are searched for without
+/// a catalogue. These searches keep no completion store and count from the front only (no
+/// published totals), so a number costs the whole list up to the isomer: all 4-5-6 cages of 40
+/// atoms take a few seconds on two cores, and the lists grow about 1.6-fold per two atoms
+/// (README, "Other face sets"). A judgement call, not measured per machine; beyond it a
+/// catalogue of the size (`enumerate --faces ... --catalogue`) is needed.
+pub const CAGES_MAX_ATOMS: usize = 40;
 
 /// One isomer number, or why it is not given.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
@@ -59,13 +68,19 @@ pub struct Numbers {
 impl Numbers {
     /// The IDs these numbers give, complete list first (`C84:all-51591`, `C84:IPR-23`).
     pub fn ids(&self, atoms: usize) -> Vec<IsomerId> {
+        self.ids_in(FaceSet::Fullerene, atoms)
+    }
+
+    /// The IDs these numbers give in the lists of `set`, complete list first
+    /// (`B12N12:4-6-all-3`, `B12N12:4-6-iso-1`).
+    pub fn ids_in(&self, set: FaceSet, atoms: usize) -> Vec<IsomerId> {
         let atoms = atoms as u32;
         let mut out = Vec::new();
         if let Some(n) = self.complete.listed() {
-            out.push(IsomerId::new(atoms, List::All, n));
+            out.push(IsomerId::of(set, atoms, List::All, n));
         }
         if let Some(n) = self.ipr.listed() {
-            out.push(IsomerId::new(atoms, List::Ipr, n));
+            out.push(IsomerId::of(set, atoms, List::Ipr, n));
         }
         out
     }
@@ -84,6 +99,8 @@ pub enum NumbersError {
     Catalogue(CatalogueError),
     /// No fullerene has this many atoms.
     Size(SpiralError),
+    /// No cage of the ID's face set has this many atoms.
+    CageSize(SizeError),
 }
 
 impl std::fmt::Display for NumbersError {
@@ -91,6 +108,7 @@ impl std::fmt::Display for NumbersError {
         match self {
             NumbersError::Catalogue(e) => write!(f, "cannot read the catalogue: {e}"),
             NumbersError::Size(e) => e.fmt(f),
+            NumbersError::CageSize(e) => e.fmt(f),
         }
     }
 }
@@ -119,28 +137,42 @@ pub fn numbers_with_progress(
     catalogue: Option<&Path>,
     progress: Progress,
 ) -> Result<Numbers, NumbersError> {
+    numbers_in(FaceSet::Fullerene, spiral, ipr, catalogue, progress)
+}
+
+/// Numbers of a canonical spiral in the lists of `set` (`isolated`: the cage obeys the set's
+/// isolation rule, so it has a number in the isolated list too), as [`numbers_with_progress`]
+/// does for fullerenes. For the other face sets both lists are searched up to
+/// [`CAGES_MAX_ATOMS`] when no catalogue holds them.
+pub fn numbers_in(
+    set: FaceSet,
+    spiral: &Spiral,
+    isolated: bool,
+    catalogue: Option<&Path>,
+    progress: Progress,
+) -> Result<Numbers, NumbersError> {
+    let ipr = isolated;
     let (complete, ipr_number) = match catalogue {
-        Some(dir) => from_catalogue(dir, spiral, ipr).map_err(NumbersError::Catalogue)?,
+        Some(dir) => from_catalogue_in(dir, set, spiral, ipr).map_err(NumbersError::Catalogue)?,
         None => (None, (!ipr).then_some(Number::NotListed)),
     };
     let atoms = spiral.atoms();
+    let (complete_limit, ipr_limit) = search_limits(set);
     let (complete, ipr_number) = match (complete, ipr_number) {
         (Some(c), Some(i)) => (c, i),
-        (None, known_ipr) if atoms <= COMPLETE_LIST_MAX_ATOMS => {
+        (None, known_ipr) if atoms <= complete_limit => {
             // One pass over the complete list gives both numbers.
-            let (c, i) = search(spiral, false, progress);
+            let (c, i) = search(set, spiral, false, progress);
             (c, known_ipr.unwrap_or(i))
         }
         (c, i) => (
             c.unwrap_or(Number::NotComputed {
-                limit: COMPLETE_LIST_MAX_ATOMS,
+                limit: complete_limit,
             }),
             match i {
                 Some(i) => i,
-                None if atoms <= IPR_LIST_MAX_ATOMS => search(spiral, true, progress).1,
-                None => Number::NotComputed {
-                    limit: IPR_LIST_MAX_ATOMS,
-                },
+                None if atoms <= ipr_limit => search(set, spiral, true, progress).1,
+                None => Number::NotComputed { limit: ipr_limit },
             },
         ),
     };
@@ -156,10 +188,18 @@ pub fn by_enumeration(spiral: &Spiral, ipr: bool) -> Numbers {
         .expect("invariant: without a catalogue nothing is read")
 }
 
-/// (complete-list, IPR-list) numbers from one search of one list; the complete list gives
-/// both, the IPR list only the second.
-fn search(spiral: &Spiral, ipr_list: bool, progress: Progress) -> (Number, Number) {
-    let Ok(spec) = Spec::fullerene(spiral.atoms() as u64, ipr_list) else {
+/// Largest sizes whose (complete, isolated) lists of `set` are searched without a catalogue.
+fn search_limits(set: FaceSet) -> (usize, usize) {
+    match set {
+        FaceSet::Fullerene => (COMPLETE_LIST_MAX_ATOMS, IPR_LIST_MAX_ATOMS),
+        _ => (CAGES_MAX_ATOMS, CAGES_MAX_ATOMS),
+    }
+}
+
+/// (complete-list, IPR-list) numbers from one search of one list of `set`; the complete list
+/// gives both, the IPR (isolated) list only the second.
+fn search(set: FaceSet, spiral: &Spiral, ipr_list: bool, progress: Progress) -> (Number, Number) {
+    let Ok(spec) = Spec::cages(spiral.atoms() as u64, set, ipr_list) else {
         return (Number::NotListed, Number::NotListed);
     };
     let listed = |n: Option<u64>| n.map_or(Number::NotListed, Number::Listed);
@@ -172,7 +212,7 @@ fn search(spiral: &Spiral, ipr_list: bool, progress: Progress) -> (Number, Numbe
 /// Position of `spiral` in the complete or IPR list of its size, running only the units on one
 /// side of it (lists come in increasing spiral order).
 pub fn position_in_list(spiral: &Spiral, ipr: bool) -> Number {
-    let (complete, ipr_number) = search(spiral, ipr, &mut |_, _| {});
+    let (complete, ipr_number) = search(FaceSet::Fullerene, spiral, ipr, &mut |_, _| {});
     if ipr {
         ipr_number
     } else {
@@ -188,10 +228,21 @@ pub fn from_catalogue(
     spiral: &Spiral,
     ipr: bool,
 ) -> Result<(Option<Number>, Option<Number>), CatalogueError> {
+    from_catalogue_in(dir, FaceSet::Fullerene, spiral, ipr)
+}
+
+/// As [`from_catalogue`], in the data files of face set `set` (`ipr`: the cage obeys the set's
+/// isolation rule).
+pub fn from_catalogue_in(
+    dir: &Path,
+    set: FaceSet,
+    spiral: &Spiral,
+    ipr: bool,
+) -> Result<(Option<Number>, Option<Number>), CatalogueError> {
     let atoms = spiral.atoms() as u32;
     let mut complete = None;
     let mut ipr_number = (!ipr).then_some(Number::NotListed);
-    if let Some(mut file) = open_trusted(dir, atoms, false)? {
+    if let Some(mut file) = open_trusted(dir, set, atoms, false)? {
         let hit = find_spiral(&mut file, spiral)?;
         complete = Some(listed(hit.and_then(|h| h.0)));
         if ipr {
@@ -199,7 +250,7 @@ pub fn from_catalogue(
         }
     }
     if ipr_number.is_none() {
-        if let Some(mut file) = open_trusted(dir, atoms, true)? {
+        if let Some(mut file) = open_trusted(dir, set, atoms, true)? {
             let hit = find_spiral(&mut file, spiral)?;
             ipr_number = Some(listed(hit.and_then(|h| h.1)));
         }
@@ -239,34 +290,19 @@ fn locate_with(
     search_other: bool,
     progress: Progress,
 ) -> Result<Option<Located>, NumbersError> {
-    if id.face_set != FaceSet::Fullerene {
-        // Commands that take an ID (show, export, draw, derive, energy) handle fullerenes only
-        // so far; a usage error beats reading the number in the fullerene list.
-        let set = id.face_set;
-        let bound = match set {
-            FaceSet::PentagonHexagonHeptagon { heptagons } => format!(" --heptagons {heptagons}"),
-            _ => String::new(),
-        };
-        return Err(NumbersError::Size(SpiralError::BadAtoms {
-            atoms: u64::from(id.atoms),
-            reason: format!(
-                "{id} is a {} cage, and this command knows fullerene IDs only so far; list it \
-                 with `cagerank enumerate {} --faces {}{bound} --json`",
-                set.name(),
-                id.atoms,
-                set.name()
-            ),
-        }));
-    }
-    let spec =
-        Spec::fullerene(u64::from(id.atoms), id.list.is_ipr()).map_err(NumbersError::Size)?;
+    let spec = if id.face_set == FaceSet::Fullerene {
+        Spec::fullerene(u64::from(id.atoms), id.list.is_ipr()).map_err(NumbersError::Size)?
+    } else {
+        Spec::cages(u64::from(id.atoms), id.face_set, id.list.is_ipr())
+            .map_err(NumbersError::CageSize)?
+    };
     let from_file = match catalogue {
         Some(dir) => by_number_in_catalogue(dir, id).map_err(NumbersError::Catalogue)?,
         None => None,
     };
     let (spiral, ipr, known) = match from_file {
         Some(Some((spiral, numbers))) => {
-            let ipr = spiral_is_ipr(&spiral);
+            let ipr = spiral.to_cage().is_isolated(id.face_set);
             (spiral, ipr, numbers)
         }
         Some(None) => return Ok(None),
@@ -286,9 +322,9 @@ fn locate_with(
         },
         (c, i) => {
             let mut rest = if search_other {
-                numbers_with_progress(&spiral, ipr, catalogue, progress)?
+                numbers_in(id.face_set, &spiral, ipr, catalogue, progress)?
             } else {
-                catalogue_only(&spiral, ipr, catalogue)?
+                catalogue_only(id.face_set, &spiral, ipr, catalogue)?
             };
             if let Some(c) = c {
                 rest.complete = Number::Listed(c);
@@ -304,12 +340,13 @@ fn locate_with(
 
 /// Numbers a catalogue gives, `NotComputed` for the rest.
 fn catalogue_only(
+    set: FaceSet,
     spiral: &Spiral,
     ipr: bool,
     catalogue: Option<&Path>,
 ) -> Result<Numbers, NumbersError> {
     let (complete, ipr_number) = match catalogue {
-        Some(dir) => from_catalogue(dir, spiral, ipr).map_err(NumbersError::Catalogue)?,
+        Some(dir) => from_catalogue_in(dir, set, spiral, ipr).map_err(NumbersError::Catalogue)?,
         None => (None, None),
     };
     let not_computed = Number::NotComputed { limit: 0 };
@@ -319,17 +356,18 @@ fn catalogue_only(
     })
 }
 
-fn spiral_is_ipr(spiral: &Spiral) -> bool {
-    spiral.to_cage().is_ipr()
-}
-
 /// A catalogue record's (complete-list number, IPR-list number).
 type ListNumbers = (Option<u64>, Option<u64>);
 
 /// The data file of one list if it exists, is one whole (numbered) run, and was made by a
 /// search known to find every cage of that list.
-fn open_trusted(dir: &Path, atoms: u32, ipr: bool) -> Result<Option<DataFile>, CatalogueError> {
-    let path = dir.join(data_file_name(FaceSet::Fullerene, atoms, ipr, 0));
+fn open_trusted(
+    dir: &Path,
+    set: FaceSet,
+    atoms: u32,
+    ipr: bool,
+) -> Result<Option<DataFile>, CatalogueError> {
+    let path = dir.join(data_file_name(set, atoms, ipr, 0));
     if !path.is_file() {
         return Ok(None);
     }
@@ -341,7 +379,8 @@ fn open_trusted(dir: &Path, atoms: u32, ipr: bool) -> Result<Option<DataFile>, C
         ipr: info.ipr,
         all_starts: info.all_starts,
     };
-    let trusted = info.shard.is_none() && info.atoms == atoms && info.ipr == ipr;
+    let trusted =
+        info.shard.is_none() && info.atoms == atoms && info.ipr == ipr && info.face_set == set;
     Ok((trusted && spec.starts_verified() && spec.spiral_complete()).then_some(file))
 }
 
@@ -409,10 +448,10 @@ fn by_number_in_catalogue(
     dir: &Path,
     id: IsomerId,
 ) -> Result<Option<Option<(Spiral, ListNumbers)>>, CatalogueError> {
-    let own = open_trusted(dir, id.atoms, id.list.is_ipr())?;
+    let own = open_trusted(dir, id.face_set, id.atoms, id.list.is_ipr())?;
     let (mut file, count_ipr) = match (own, id.list) {
         (Some(f), _) => (f, false),
-        (None, List::Ipr) => match open_trusted(dir, id.atoms, false)? {
+        (None, List::Ipr) => match open_trusted(dir, id.face_set, id.atoms, false)? {
             Some(f) => (f, true),
             None => return Ok(None),
         },

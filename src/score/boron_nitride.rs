@@ -22,7 +22,7 @@ use super::symmetry::{self, PointGroup};
 use crate::cage::{Cage, FaceSet, MAX_FACE};
 use crate::derivative::huckel as hetero_huckel;
 use crate::derivative::Hetero;
-use crate::spiral::{Automorphism, Canonical};
+use crate::spiral::{Automorphism, Canonical, Spiral};
 use std::cmp::Ordering;
 
 /// What a {4,6} cage is as a BN cage.
@@ -224,4 +224,26 @@ pub fn rank_facts(
         heptagons: cage.face_size_counts()[7] as u32,
         gap: bn.map_or(carbon_gap, |d| d.gap),
     }
+}
+
+/// The ranking facts of the cage wound from `spiral` in `set`, with `carbon_gap` the
+/// all-carbon Hückel gap (a catalogue record's, or [`super::describe`]'s); a 4-6 cage gets its
+/// BN gap computed here. `None` if a 4-6 spiral cannot be read as a BN cage.
+pub fn facts_of_spiral(spiral: &Spiral, set: FaceSet, carbon_gap: f64) -> Option<RankFacts> {
+    let cage = spiral.to_cage();
+    let bn = if set == FaceSet::SquareHexagon {
+        let canonical = crate::spiral::canonical_spiral(&cage)?;
+        Some(describe_bn(&cage, &canonical).ok()?)
+    } else {
+        None
+    };
+    Some(rank_facts(&cage, set, carbon_gap, bn.as_ref()))
+}
+
+/// Indices of `facts` in the documented default order of `set` ([`default_order`]; ties keep
+/// the input order, which callers give in spiral order).
+pub fn ranked_order(set: FaceSet, facts: &[RankFacts]) -> Vec<usize> {
+    let mut order: Vec<usize> = (0..facts.len()).collect();
+    order.sort_by(|&a, &b| default_order(set, &facts[a], &facts[b]));
+    order
 }

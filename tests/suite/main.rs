@@ -3,6 +3,7 @@
 //! Each module is one area; run one with `cargo test --release --test suite -- MODULE::`.
 
 mod cages;
+mod cages_pipeline;
 mod catalogue;
 mod catalogue_cli;
 mod cli_enumerate;
