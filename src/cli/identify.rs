@@ -317,7 +317,7 @@ fn text_block(
     // A BN cage's symmetry is that of the coloured cage (B12N12: Th, its bare graph Oh).
     let group = bn
         .as_ref()
-        .map_or(d.point_group.name(), |(group, _)| group.clone());
+        .map_or(d.point_group.name(), |(group, _, _)| group.clone());
     let mut lines = vec![
         format!(
             "{}: {}  {}",
@@ -340,31 +340,48 @@ fn text_block(
             id.formula(),
             id.cage.adjacencies_of(4)
         ));
-        if let Some((_, line)) = bn {
-            lines.push(line);
+        if let Some((_, line, _)) = &bn {
+            lines.push(line.clone());
         }
     }
-    lines.extend([
-        format!("  symmetry              {}", symmetry_text(d)),
-        format!("  13C NMR pattern       {}", nmr_text(&d.nmr)),
-        format!(
-            "  pentagon adjacencies  {} ({})",
-            d.pentagon_adjacencies,
-            if id.cage.is_ipr() { "IPR" } else { "not IPR" }
-        ),
-        format!(
-            "  hexagon neighbours    k=0..6: {:?}, strain (std. dev. of k) {:.4}",
-            d.hexagon_neighbours, d.hexagon_strain
-        ),
-        format!(
-            "  Hückel (charge {charge:+})     HOMO {:.4}, LUMO {:.4}, gap {:.4} |beta|, {}",
-            d.homo,
-            d.lumo,
-            d.gap,
-            d.shell.name()
-        ),
-        format!("  Kekulé structures     {}", d.kekule),
-    ]);
+    if let Some((_, _, levels)) = &bn {
+        // A BN cage: its symmetry and NMR are on the BN line; the carbon graph's Hückel levels,
+        // Kekulé count and pentagon/hexagon counts would describe another molecule.
+        lines.push(levels.clone());
+    } else {
+        lines.extend([
+            format!("  symmetry              {}", symmetry_text(d)),
+            format!("  13C NMR pattern       {}", nmr_text(&d.nmr)),
+        ]);
+        if id.face_set == FaceSet::Fullerene || id.cage.face_size_counts()[5] > 0 {
+            let rule = match (id.face_set, id.cage.is_ipr()) {
+                (FaceSet::Fullerene, true) => "IPR",
+                (FaceSet::Fullerene, false) => "not IPR",
+                (_, true) => "isolated pentagons",
+                (_, false) => "pentagons touch",
+            };
+            lines.push(format!(
+                "  pentagon adjacencies  {} ({rule})",
+                d.pentagon_adjacencies
+            ));
+        }
+        if id.face_set == FaceSet::Fullerene {
+            lines.push(format!(
+                "  hexagon neighbours    k=0..6: {:?}, strain (std. dev. of k) {:.4}",
+                d.hexagon_neighbours, d.hexagon_strain
+            ));
+        }
+        lines.extend([
+            format!(
+                "  Hückel (charge {charge:+})     HOMO {:.4}, LUMO {:.4}, gap {:.4} |beta|, {}",
+                d.homo,
+                d.lumo,
+                d.gap,
+                d.shell.name()
+            ),
+            format!("  Kekulé structures     {}", d.kekule),
+        ]);
+    }
     if let Some(n) = numbers {
         lines.extend(
             number_notes(&n, atoms, spiral)
@@ -375,10 +392,10 @@ fn text_block(
     lines
 }
 
-/// The BN cage's point group and a line with its symmetry and 11B/15N patterns, for a 4-6 cage
-/// whose B and N alternate (the colouring's classes follow the file: boron where the file has
-/// boron).
-fn bn_values(id: &Identity) -> Option<(String, String)> {
+/// The BN cage's point group, a line with its symmetry and 11B/15N patterns and a line with its
+/// heteroatom Hückel levels, for a 4-6 cage whose B and N alternate (the colouring's classes
+/// follow the file: boron where the file has boron).
+fn bn_values(id: &Identity) -> Option<(String, String, String)> {
     if !(id.face_set == FaceSet::SquareHexagon && id.is_boron_nitride()) {
         return None;
     }
@@ -398,7 +415,11 @@ fn bn_values(id: &Identity) -> Option<(String, String)> {
         nmr_text(boron),
         nmr_text(nitrogen)
     );
-    Some((bn.point_group.name(), line))
+    let levels = format!(
+        "  BN Hückel             HOMO {:.4}, LUMO {:.4}, gap {:.4} |beta| (Van-Catledge 1980 parameters)",
+        bn.homo, bn.lumo, bn.gap
+    );
+    Some((bn.point_group.name(), line, levels))
 }
 
 fn cage_line(cage: &Cage, ignored: usize) -> String {
