@@ -148,18 +148,7 @@ pub fn isomer_line(
                 json!({"4": counts[4], "5": counts[5], "6": counts[6], "7": counts[7]}),
             );
             if let Some(b) = &bn {
-                m.insert(
-                    "bn".into(),
-                    json!({
-                        "boron_on": "atom 0 of the canonical-spiral winding",
-                        "homo": b.homo, "lumo": b.lumo, "gap": b.gap, "pi_energy": b.pi_energy,
-                        "point_group": b.point_group.name(), "chiral": b.chiral,
-                        "automorphisms": b.automorphisms,
-                        "nmr_11b": format_pattern(&b.boron_nmr),
-                        "nmr_15n": format_pattern(&b.nitrogen_nmr),
-                        "swap_equivalent": b.swap_equivalent,
-                    }),
-                );
+                m.insert("bn".into(), cagerank::export::cages::bn_json(b));
             }
         }
         return v.to_string();

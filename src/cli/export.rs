@@ -531,20 +531,12 @@ fn cages_by_enumeration(spec: &Spec, k: usize) -> Result<Vec<Pick>, CliError> {
             })?,
         );
     }
-    boron_nitride::ranked_order(spec.face_set, &facts)
-        .into_iter()
-        .take(k)
-        .map(|i| {
-            let numbers = Numbers {
-                number: isomers[i].number,
-                ipr_number: isomers[i].ipr_number,
-            };
-            let id = id_in(spec, numbers).ok_or_else(|| {
-                CliError::failed("an enumerated isomer has no number (internal inconsistency)")
-            })?;
-            Ok((id, isomers[i].spiral.clone(), numbers))
-        })
-        .collect()
+    picks(
+        spec,
+        &isomers,
+        boron_nitride::ranked_order(spec.face_set, &facts),
+        k,
+    )
 }
 
 /// The top K from a catalogue: by stored tight-binding energy when a screen of this size, list
@@ -682,6 +674,16 @@ fn by_enumeration(spec: &Spec, k: usize, charge: i32) -> Result<Vec<Pick>, CliEr
     rank::rank(&mut scored, &rank::default_keys());
     let mut order: Vec<usize> = (0..scored.len()).collect();
     order.sort_by_key(|&i| scored[i].rank);
+    picks(spec, &isomers, order, k)
+}
+
+/// The first `k` of `order` (indices into `isomers`) as picks with their IDs.
+fn picks(
+    spec: &Spec,
+    isomers: &[enumerate::Isomer],
+    order: Vec<usize>,
+    k: usize,
+) -> Result<Vec<Pick>, CliError> {
     order
         .into_iter()
         .take(k)

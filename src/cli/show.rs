@@ -170,7 +170,7 @@ fn show_cage(id: IsomerId, dir: &Path, args: &Args) -> Result<(), CliError> {
             );
             map.insert("square_adjacencies".into(), cage.adjacencies_of(4).into());
             if let Some(b) = &bn {
-                map.insert("bn".into(), bn_json(b));
+                map.insert("bn".into(), cagerank::export::cages::bn_json(b));
             }
         }
         write_line(&mut out, &value.to_string())?;
@@ -191,20 +191,6 @@ fn show_cage(id: IsomerId, dir: &Path, args: &Args) -> Result<(), CliError> {
         write_line(&mut out, CAUTION)?;
     }
     out.finish()
-}
-
-/// The BN values of a 4-6 cage as JSON (the keys `enumerate --faces 4-6 --json` uses).
-fn bn_json(b: &BnDescriptors) -> serde_json::Value {
-    serde_json::json!({
-        "boron_on": "atom 0 of the canonical-spiral winding",
-        "homo": b.homo, "lumo": b.lumo, "gap": b.gap, "pi_energy": b.pi_energy,
-        "point_group": b.point_group.name(), "chiral": b.chiral,
-        "automorphisms": b.automorphisms,
-        "cage_point_group": b.cage_point_group.name(),
-        "nmr_11b": nmr::format_pattern(&b.boron_nmr),
-        "nmr_15n": nmr::format_pattern(&b.nitrogen_nmr),
-        "swap_equivalent": b.swap_equivalent,
-    })
 }
 
 /// The block of a cage of another face set, grouped as for fullerenes: identity, topology

@@ -69,6 +69,21 @@ fn bn_pairs(bn: &BnDescriptors) -> Vec<(String, String)> {
     ]
 }
 
+/// A BN cage's descriptors as the JSON object that `enumerate --json`, `show --json` and the
+/// export's JSON records carry under "bn".
+pub fn bn_json(bn: &BnDescriptors) -> Value {
+    json!({
+        "boron_on": "atom 0 of the canonical-spiral winding",
+        "homo": bn.homo, "lumo": bn.lumo, "gap": bn.gap, "pi_energy": bn.pi_energy,
+        "point_group": bn.point_group.name(), "chiral": bn.chiral,
+        "automorphisms": bn.automorphisms,
+        "cage_point_group": bn.cage_point_group.name(),
+        "nmr_11b": format_pattern(&bn.boron_nmr),
+        "nmr_15n": format_pattern(&bn.nitrogen_nmr),
+        "swap_equivalent": bn.swap_equivalent,
+    })
+}
+
 /// The face-set block of the JSON record (`null` for fullerenes).
 pub fn json(entry: &Entry) -> Value {
     if entry.id.face_set == FaceSet::Fullerene {
@@ -83,19 +98,11 @@ pub fn json(entry: &Entry) -> Value {
         "square_adjacencies": entry.cage.adjacencies_of(4),
     });
     if let (Some(bn), Some(map)) = (&entry.bn, value.as_object_mut()) {
-        map.insert(
-            "bn".into(),
-            json!({
-                "boron_on": "atom 0 of the canonical-spiral winding",
-                "homo": bn.homo, "lumo": bn.lumo, "gap": bn.gap, "pi_energy": bn.pi_energy,
-                "point_group": bn.point_group.name(), "chiral": bn.chiral,
-                "automorphisms": bn.automorphisms,
-                "nmr_11b": format_pattern(&bn.boron_nmr),
-                "nmr_15n": format_pattern(&bn.nitrogen_nmr),
-                "swap_equivalent": bn.swap_equivalent,
-                "geometry_note": BN_GEOMETRY_NOTE,
-            }),
-        );
+        let mut bn = bn_json(bn);
+        if let Some(b) = bn.as_object_mut() {
+            b.insert("geometry_note".into(), json!(BN_GEOMETRY_NOTE));
+        }
+        map.insert("bn".into(), bn);
     }
     value
 }
