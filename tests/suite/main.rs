@@ -18,5 +18,6 @@ mod huckel_kekule;
 mod identify;
 mod identify_catalogue;
 mod install;
+mod plan;
 mod screen;
 mod symmetry;
