@@ -6,6 +6,7 @@ mod cages;
 mod catalogue;
 mod catalogue_cli;
 mod cli_enumerate;
+mod cluster_merge;
 mod common;
 mod derivative;
 mod docs_examples;
