@@ -377,6 +377,10 @@ fn write_catalogue(
     };
     let mut writer = Writer::open(&dir, info).map_err(catalogue_error)?;
     let pending: std::collections::BTreeSet<u32> = writer.pending_units().into_iter().collect();
+    // A cluster task's log is often the only sign that a resubmitted task resumed rather than
+    // started over, so the final line says how many units were already committed.
+    let mine = catalogue::resume::units_of(writer.info()).len();
+    let resumed = mine - pending.len().min(mine);
     let todo: Vec<_> = all_units
         .into_iter()
         .filter(|u| pending.contains(&u.index))
@@ -436,8 +440,13 @@ fn write_catalogue(
         } else {
             counted(done.records, "isomer", "isomers")
         };
+        let resumed = if resumed > 0 && !done.was_complete {
+            format!(" (resumed: {resumed} of {mine} units were already committed)")
+        } else {
+            String::new()
+        };
         format!(
-            "C{}: {counted} written to {}",
+            "C{}: {counted} written to {}{resumed}",
             spec.atoms,
             done.path.display()
         )

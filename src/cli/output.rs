@@ -21,6 +21,21 @@ impl Out {
         self.closed
     }
 
+    /// Sends what is buffered now, for output that comes slowly (one line per sampled size).
+    pub fn flush(&mut self) -> Result<(), CliError> {
+        if self.closed {
+            return Ok(());
+        }
+        match self.inner.flush() {
+            Err(e) if e.kind() == io::ErrorKind::BrokenPipe => {
+                self.closed = true;
+                Ok(())
+            }
+            Err(e) => Err(CliError::failed(format!("cannot write output: {e}"))),
+            Ok(()) => Ok(()),
+        }
+    }
+
     pub fn finish(mut self) -> Result<(), CliError> {
         if self.closed {
             return Ok(());

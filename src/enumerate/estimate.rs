@@ -141,9 +141,16 @@ fn shifted_power(a: u32, b: u32, ipr: bool) -> Option<(f64, f64)> {
 }
 
 /// Time and memory of enumerating `spec` on `threads` workers (0: one per core), as shard
-/// part of `shards`, doing `work` with each isomer.
+/// part of `shards`, doing `work` with each isomer, on this machine: the thread count is capped
+/// at its cores as the run will cap it.
 pub fn estimate(spec: &Spec, threads: usize, shards: u32, work: Work) -> Estimate {
-    let threads = worker_threads(threads);
+    estimate_on(spec, worker_threads(threads), shards, work)
+}
+
+/// As [`estimate`], for a run on `threads` workers of another machine (a cluster node), so not
+/// capped at this one's cores. Times are this machine's per core.
+pub fn estimate_on(spec: &Spec, threads: usize, shards: u32, work: Work) -> Estimate {
+    let threads = threads.max(1);
     let (isomers, published) = isomers(spec);
     let n = f64::from(spec.atoms);
     let r = &REFERENCES[usize::from(spec.ipr)][usize::from(spec.all_starts)];
@@ -159,10 +166,12 @@ pub fn estimate(spec: &Spec, threads: usize, shards: u32, work: Work) -> Estimat
     let faces = spec.faces() as u64;
     let per_isomer = (std::mem::size_of::<Found>() as u64 + faces + 16)
         + if work == Work::Score { SCORED_BYTES } else { 0 };
-    // Counting keeps no isomer; listing holds a window of units' isomers at once.
+    // Counting keeps no isomer; listing holds a window of units' isomers at once, and a shard
+    // has only its share of the units to fill the window with.
+    let shard_units = (unit_count / part).ceil();
     let held = match work {
         Work::Count => 0.0,
-        Work::Score => isomers * (window_units(spec, threads) as f64 / unit_count).min(1.0),
+        Work::Score => isomers * (window_units(spec, threads) as f64).min(shard_units) / unit_count,
     };
     let bytes = store::most_bytes(spec.all_starts) as f64
         + held * per_isomer as f64
