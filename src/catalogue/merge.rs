@@ -26,14 +26,20 @@ pub struct MergeReport {
 /// Merges the data files of the catalogue directories `inputs` into catalogue `into`.
 pub fn merge(inputs: &[PathBuf], into: &Path) -> Result<MergeReport, CatalogueError> {
     let groups = group_inputs(inputs)?;
+    check_one_run_per_split(&groups)?;
+    // Every group is checked before anything is created, so a refused merge leaves no trace.
+    let mut checked = Vec::with_capacity(groups.len());
+    for (name, files) in groups {
+        let whole = check_group(&name, &files)?;
+        checked.push((name, files, whole));
+    }
     fs::create_dir_all(into).map_err(|e| super::lock::write_error(into, into, e))?;
     let _lock = Lock::acquire(into)?;
     let mut report = MergeReport {
         written: Vec::new(),
         unchanged: Vec::new(),
     };
-    for (name, files) in groups {
-        let whole = check_group(&name, &files)?;
+    for (name, files, whole) in checked {
         let dest = into.join(&name);
         if dest.exists() {
             let existing = DataFile::open(&dest)?;
@@ -74,6 +80,37 @@ fn group_inputs(inputs: &[PathBuf]) -> Result<BTreeMap<String, Vec<DataFile>>, C
         }
     }
     Ok(groups)
+}
+
+/// Shards given together that belong to different runs (another size, face set or list) form
+/// groups that are each incomplete; rather than report every group's missing shards, name two
+/// shards of the same split that sit in different runs, which is what went wrong.
+fn check_one_run_per_split(groups: &BTreeMap<String, Vec<DataFile>>) -> Result<(), CatalogueError> {
+    let incomplete: Vec<&DataFile> = groups
+        .values()
+        .filter_map(|files| {
+            let n = files[0].info.shard?.count;
+            let present = files.iter().filter(|f| f.info.shard.is_some()).count();
+            (present < n as usize).then_some(&files[0])
+        })
+        .collect();
+    for (i, a) in incomplete.iter().enumerate() {
+        let n = a.info.shard.map(|s| s.count);
+        if let Some(b) = incomplete[i + 1..]
+            .iter()
+            .find(|b| b.info.shard.map(|s| s.count) == n)
+        {
+            return Err(CatalogueError::Merge(format!(
+                "{} ({}) and {} ({}) are shards of different runs, and neither run has all \
+                 its shards; merge the shards of one run together",
+                a.path().display(),
+                describe(&a.info),
+                b.path().display(),
+                describe(&b.info)
+            )));
+        }
+    }
+    Ok(())
 }
 
 /// Shards of one size and list must share a charge: records computed for different cage ions

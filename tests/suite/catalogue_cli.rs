@@ -180,7 +180,8 @@ fn shards_of_different_sizes_lists_or_charges_are_refused_by_name() {
         "{err}"
     );
     assert_eq!(err.trim().lines().count(), 1, "{err}");
-    // Shards of another size give two incomplete runs: each is named with its missing shard.
+    // Shards of another size: the refusal names both files and says they are of different
+    // runs, and nothing is created (issue 22: merges of different sizes refused naming them).
     let c = dir.join("c");
     assert_success(&enumerate_into(&c, "42", &["--shard", "2/2"]));
     let out = bin()
@@ -192,7 +193,16 @@ fn shards_of_different_sizes_lists_or_charges_are_refused_by_name() {
         .unwrap();
     assert_eq!(out.status.code(), Some(2));
     let err = String::from_utf8_lossy(&out.stderr);
-    assert!(err.contains("missing shard(s)"), "{err}");
+    assert!(err.contains("different runs"), "{err}");
+    assert!(
+        err.contains("fullerene-c40-all.cgr") && err.contains("fullerene-c42-all.cgr"),
+        "{err}"
+    );
+    assert_eq!(err.trim().lines().count(), 1, "{err}");
+    assert!(
+        !dir.join("out").exists(),
+        "a refused merge created its destination"
+    );
     let _ = std::fs::remove_dir_all(&dir);
 }
 

@@ -81,7 +81,10 @@ fn shards_of_another_version_are_refused_naming_the_file() {
     assert_eq!(err.trim().lines().count(), 1, "{err}");
     assert!(err.contains("cagerank 0.0.1"), "{err}");
     assert!(err.contains("fullerene-c40-all.cgr"), "{err}");
-    assert!(!base.join("out/fullerene-c40-all.cgr").exists());
+    assert!(
+        !base.join("out").exists(),
+        "a refused merge created its destination"
+    );
     let _ = std::fs::remove_dir_all(&base);
 }
 
@@ -94,11 +97,16 @@ fn shards_of_another_face_set_are_refused_naming_the_file() {
     let (code, err) = merge(&[&a, &b], &base.join("out"));
     assert_eq!(code, Some(2), "{err}");
     assert_eq!(err.trim().lines().count(), 1, "{err}");
-    // Each face set's run lacks a shard; the refusal names one of the two files.
+    // Each face set's run lacks a shard; the refusal names both files and the cause, and
+    // creates nothing.
     assert!(
-        err.contains("fullerene-c40-all.cgr") || err.contains("4-5-6-c40-all.cgr"),
+        err.contains("fullerene-c40-all.cgr") && err.contains("4-5-6-c40-all.cgr"),
         "{err}"
     );
-    assert!(!base.join("out/fullerene-c40-all.cgr").exists());
+    assert!(err.contains("different runs"), "{err}");
+    assert!(
+        !base.join("out").exists(),
+        "a refused merge created its destination"
+    );
     let _ = std::fs::remove_dir_all(&base);
 }
