@@ -6,7 +6,7 @@
 //! are grouped under the headings `show` uses (identity, topology, electronic structure,
 //! symmetry), units in the labels. `--json` lines keep their keys.
 
-use super::output::{counted, write_line, Out};
+use super::output::{counted, grouped, write_line, Out};
 use super::progress;
 use super::query::catalogue_error;
 use super::sizes::{parse_sizes, Size};
@@ -203,19 +203,6 @@ fn announce(args: &Args, spec: &Spec, work: Work) {
         counted(e.threads as u64, "thread", "threads"),
         bytes_text(e.bytes),
     );
-}
-
-/// 285914 -> "285,914".
-fn grouped(n: u64) -> String {
-    let digits = n.to_string();
-    let mut out = String::new();
-    for (i, c) in digits.chars().enumerate() {
-        if i > 0 && (digits.len() - i) % 3 == 0 {
-            out.push(',');
-        }
-        out.push(c);
-    }
-    out
 }
 
 /// Two significant figures, in scientific notation past a million.

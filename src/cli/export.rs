@@ -488,26 +488,7 @@ fn cages_from_catalogue(
         top: Some(k),
     };
     let records = query(dir, &q).map_err(super::query::catalogue_error)?;
-    records
-        .iter()
-        .map(|r| {
-            let spiral = r
-                .spiral()
-                .map_err(|e| CliError::failed(format!("damaged catalogue record: {e}")))?;
-            let numbers = Numbers {
-                number: r.number,
-                ipr_number: r.ipr_number,
-            };
-            let id = id_in(spec, numbers).ok_or_else(|| {
-                CliError::usage(format!(
-                    "the catalogue in {} holds this list only as shards, whose records have no \
-                     isomer numbers; merge the shards first (cagerank merge)",
-                    dir.display()
-                ))
-            })?;
-            Ok((id, spiral, numbers))
-        })
-        .collect()
+    picks_from_records(dir, spec, &records)
 }
 
 /// Enumerates a face-set list here, ranks it in the set's default order
@@ -584,6 +565,11 @@ fn from_catalogue(dir: &Path, spec: &Spec, k: usize, charge: i32) -> Result<Vec<
         };
         query(dir, &q).map_err(super::query::catalogue_error)?
     };
+    picks_from_records(dir, spec, &records)
+}
+
+/// The picks of catalogue records, in their order, with IDs in the spec's list.
+fn picks_from_records(dir: &Path, spec: &Spec, records: &[Record]) -> Result<Vec<Pick>, CliError> {
     records
         .iter()
         .map(|r| {

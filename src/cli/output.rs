@@ -73,3 +73,16 @@ pub fn counted(n: u64, singular: &str, plural: &str) -> String {
         format!("{n} {plural}")
     }
 }
+
+/// 285914 -> "285,914".
+pub fn grouped(n: u64) -> String {
+    let digits = n.to_string();
+    let mut out = String::new();
+    for (i, c) in digits.chars().enumerate() {
+        if i > 0 && (digits.len() - i) % 3 == 0 {
+            out.push(',');
+        }
+        out.push(c);
+    }
+    out
+}

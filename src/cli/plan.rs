@@ -279,15 +279,7 @@ fn plus_minus_time(error: f64) -> String {
 
 /// 1,234,567
 fn grouped(x: f64) -> String {
-    let digits = format!("{:.0}", x.max(0.0));
-    let mut out = String::new();
-    for (i, c) in digits.chars().enumerate() {
-        if i > 0 && (digits.len() - i) % 3 == 0 {
-            out.push(',');
-        }
-        out.push(c);
-    }
-    out
+    super::output::grouped(x.max(0.0).round() as u64)
 }
 
 /// 1.2e7 for large modelled counts, whose digits mean nothing.
