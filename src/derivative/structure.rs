@@ -15,13 +15,11 @@
 //! lone pair, B with an empty p orbital), so the molecule is neutral when every pi carbon is
 //! matched. Unmatched carbons carry the charge asked for (C+ or C-, one each; if there are too
 //! few, double bonds are opened from the end of the list) and any left over are flagged as
-//! radicals. Writing files is left to `export`; [`molfile`] only renders the description as
-//! V2000 text for checks.
+//! radicals. Writing files (XYZ, SDF) is left to `export`.
 
 use super::orbits::Search;
 use super::{kekule, Addend, Kind, Parent};
 use std::collections::BTreeMap;
-use std::fmt::Write;
 
 /// Typical bond lengths in Å (sp3 carbon to H, F, Cl; C-C single), from memory: Allen et al.,
 /// J. Chem. Soc. Perkin Trans. 2 (1987) S1.
@@ -286,58 +284,6 @@ fn place_double_bonds(
             bond.1 = 2;
         }
     }
-}
-
-/// The molecule as an MDL V2000 molfile (no `$$$$`), with `M  CHG` and `M  RAD` lines; for
-/// checks and for writers that want the text.
-pub fn molfile(m: &Molecule, name: &str) -> String {
-    let mut s = String::new();
-    let name: String = name.chars().filter(|c| !c.is_control()).take(80).collect();
-    let _ = writeln!(s, "{name}\n  cagerank          3D\n");
-    let _ = writeln!(
-        s,
-        "{:>3}{:>3}  0  0  0  0  0  0  0  0999 V2000",
-        m.atoms.len(),
-        m.bonds.len()
-    );
-    for a in &m.atoms {
-        let [x, y, z] = a.position;
-        let _ = writeln!(
-            s,
-            "{x:>10.4}{y:>10.4}{z:>10.4} {:<3} 0  0  0  0  0  0  0  0  0  0  0  0",
-            a.element
-        );
-    }
-    for ([a, b], order) in &m.bonds {
-        let _ = writeln!(s, "{:>3}{:>3}{:>3}  0  0  0  0", a + 1, b + 1, order);
-    }
-    let property = |s: &mut String, tag: &str, items: Vec<(usize, i32)>| {
-        for chunk in items.chunks(8) {
-            let _ = write!(s, "M  {tag}{:>3}", chunk.len());
-            for (i, value) in chunk {
-                let _ = write!(s, " {:>3} {:>3}", i + 1, value);
-            }
-            s.push('\n');
-        }
-    };
-    let charges = m
-        .atoms
-        .iter()
-        .enumerate()
-        .filter(|(_, a)| a.charge != 0)
-        .map(|(i, a)| (i, i32::from(a.charge)))
-        .collect();
-    property(&mut s, "CHG", charges);
-    let radicals = m
-        .atoms
-        .iter()
-        .enumerate()
-        .filter(|(_, a)| a.radical)
-        .map(|(i, _)| (i, 2))
-        .collect();
-    property(&mut s, "RAD", radicals);
-    s.push_str("M  END\n");
-    s
 }
 
 fn along(x: [f64; 3], direction: [f64; 3], length: f64) -> [f64; 3] {
