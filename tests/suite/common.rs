@@ -13,3 +13,19 @@ pub fn random_perm(n: usize, seed: u64) -> Vec<u32> {
     }
     p
 }
+
+/// Runs the cagerank binary with the shipped catalogue as the default one; exit code, stdout
+/// and stderr.
+pub fn cagerank(args: &[&str]) -> (i32, String, String) {
+    let catalogue = std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join("catalogues");
+    let out = std::process::Command::new(env!("CARGO_BIN_EXE_cagerank"))
+        .args(args)
+        .env("CAGERANK_CATALOGUE", catalogue)
+        .output()
+        .expect("the binary runs");
+    (
+        out.status.code().unwrap_or(-1),
+        String::from_utf8_lossy(&out.stdout).into_owned(),
+        String::from_utf8_lossy(&out.stderr).into_owned(),
+    )
+}

@@ -230,7 +230,6 @@ use cagerank::draw::render::{self, ImageFormat, RenderError};
 use cagerank::draw::svg;
 use cagerank::export::CAUTION;
 use std::path::{Path, PathBuf};
-use std::process::Command;
 
 /// The `width` and `height` attributes of the root `<svg>` element.
 fn svg_size(svg: &str) -> (f64, f64) {
@@ -317,19 +316,7 @@ fn only_known_extensions_name_a_format() {
     }
 }
 
-fn cagerank(args: &[&str]) -> (i32, String, String) {
-    let catalogue = Path::new(env!("CARGO_MANIFEST_DIR")).join("catalogues");
-    let out = Command::new(env!("CARGO_BIN_EXE_cagerank"))
-        .args(args)
-        .env("CAGERANK_CATALOGUE", catalogue)
-        .output()
-        .expect("the binary runs");
-    (
-        out.status.code().unwrap_or(-1),
-        String::from_utf8_lossy(&out.stdout).into_owned(),
-        String::from_utf8_lossy(&out.stderr).into_owned(),
-    )
-}
+use crate::common::cagerank;
 
 fn temp(name: &str) -> PathBuf {
     let dir = std::env::temp_dir().join(format!("cagerank-draw-{name}-{}", std::process::id()));

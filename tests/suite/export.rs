@@ -11,8 +11,7 @@ use cagerank::export::{
 use cagerank::id::IsomerId;
 use cagerank::spiral::Spiral;
 use std::collections::{BTreeMap, BTreeSet};
-use std::path::{Path, PathBuf};
-use std::process::Command;
+use std::path::PathBuf;
 
 // from memory: Fowler & Manolopoulos, An Atlas of Fullerenes (1995): C60-Ih and C70-D5h spirals,
 // C60:1812 and C70:8149 in the complete lists, each the first (only) IPR isomer of its size.
@@ -512,19 +511,7 @@ fn cp2k_deck_is_balanced_and_carries_charge_multiplicity_and_coordinates() {
     assert!(deck::check_method(Code::Cp2k, "PBE only").is_err());
 }
 
-fn cagerank(args: &[&str]) -> (i32, String, String) {
-    let catalogue = Path::new(env!("CARGO_MANIFEST_DIR")).join("catalogues");
-    let out = Command::new(env!("CARGO_BIN_EXE_cagerank"))
-        .args(args)
-        .env("CAGERANK_CATALOGUE", catalogue)
-        .output()
-        .expect("the binary runs");
-    (
-        out.status.code().unwrap_or(-1),
-        String::from_utf8_lossy(&out.stdout).into_owned(),
-        String::from_utf8_lossy(&out.stderr).into_owned(),
-    )
-}
+use crate::common::cagerank;
 
 #[test]
 fn command_line_keeps_the_two_lists_apart_and_refuses_to_overwrite() {

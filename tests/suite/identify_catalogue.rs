@@ -43,7 +43,6 @@ fn ipr_only_sizes_give_the_ipr_number_and_leave_the_complete_one_open() {
 use cagerank::enumerate::{enumerate, Options};
 use cagerank::id::{IsomerId, List};
 use cagerank::identify::numbers::{locate, numbers_with_progress, Numbers};
-use std::process::Command;
 
 fn complete_list(atoms: u64) -> Vec<cagerank::enumerate::Isomer> {
     let mut out = Vec::new();
@@ -108,18 +107,7 @@ fn catalogue_lookups_both_ways_agree_with_enumeration_and_never_search() {
     );
 }
 
-fn cagerank(args: &[&str]) -> (i32, String, String) {
-    let out = Command::new(env!("CARGO_BIN_EXE_cagerank"))
-        .args(args)
-        .env("CAGERANK_CATALOGUE", shipped())
-        .output()
-        .expect("the binary runs");
-    (
-        out.status.code().unwrap_or(-1),
-        String::from_utf8_lossy(&out.stdout).into_owned(),
-        String::from_utf8_lossy(&out.stderr).into_owned(),
-    )
-}
+use crate::common::cagerank;
 
 #[test]
 fn identify_prints_both_ids_from_the_default_catalogue() {
